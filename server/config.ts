@@ -1,0 +1,36 @@
+// Environment variables are read once, here, at boot.
+import path from 'node:path';
+
+export interface ServerConfig {
+  port: number;
+  host: string;
+  dataDir: string;
+  /** Directory holding the exported web build, or null to serve the API only. */
+  webDir: string | null;
+  jwtSecret: string | null;
+  smtpUrl: string | null;
+  mailFrom: string;
+  publicUrl: string;
+  seedDemo: boolean;
+  nodeEnv: string;
+}
+
+export function readConfig(env: NodeJS.ProcessEnv = process.env): ServerConfig {
+  const port = Number(env.PORT ?? 8080);
+  if (!Number.isInteger(port) || port < 0 || port > 65535) {
+    throw new Error(`PORT must be a whole number from 0 to 65535, got "${env.PORT}".`);
+  }
+  const root = path.resolve(__dirname, '..');
+  return {
+    port,
+    host: env.HOST ?? '0.0.0.0',
+    dataDir: path.resolve(env.DATA_DIR ?? path.join(root, 'data')),
+    webDir: env.WEB_DIR === '' ? null : path.resolve(env.WEB_DIR ?? path.join(root, 'dist')),
+    jwtSecret: env.JWT_SECRET ?? null,
+    smtpUrl: env.SMTP_URL ?? null,
+    mailFrom: env.MAIL_FROM ?? 'Ringwell <ringwell@northfold.example>',
+    publicUrl: env.PUBLIC_URL ?? `http://localhost:${port}`,
+    seedDemo: env.SEED_DEMO !== 'false',
+    nodeEnv: env.NODE_ENV ?? 'development',
+  };
+}
