@@ -8,4 +8,6 @@ module.exports = {
   transform: { '\\.[jt]sx?$': 'babel-jest' },
   testTimeout: 180_000,
   maxWorkers: 1,
+  // Keep-alive sockets of Node's fetch can hold the process a few seconds after the last test.
+  forceExit: true,
 };

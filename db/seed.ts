@@ -3,7 +3,8 @@
 // alone.
 import { count } from 'drizzle-orm';
 import type { Database } from './client';
-import { memberships, teams, users, type Role } from './schema';
+import { demoParts } from '../sim/parts';
+import { componentParts, memberships, teams, users, type Role } from './schema';
 
 export interface DemoAccount {
   name: string;
@@ -39,6 +40,10 @@ export async function seedDemo(db: Database, hashPassword: (password: string) =>
         .returning();
       await tx.insert(memberships).values({ teamId: team.id, userId: user.id, role: account.role });
     }
+    // The parts library starts with the demo parts (fictional NF-… numbers).
+    await tx.insert(componentParts).values(
+      demoParts().map(({ id: _id, ...part }) => ({ teamId: team.id, type: part.kind, name: part.partNumber, ratings: part })),
+    );
     return team.id;
   });
   return { seeded: true, teamId };

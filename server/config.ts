@@ -9,6 +9,8 @@ export interface ServerConfig {
   webDir: string | null;
   jwtSecret: string | null;
   smtpUrl: string | null;
+  /** Port of the local capture SMTP server when SMTP_URL is unset; 0 = any free port. */
+  smtpPort: number;
   mailFrom: string;
   publicUrl: string;
   seedDemo: boolean;
@@ -16,21 +18,27 @@ export interface ServerConfig {
 }
 
 export function readConfig(env: NodeJS.ProcessEnv = process.env): ServerConfig {
-  const port = Number(env.PORT ?? 8080);
-  if (!Number.isInteger(port) || port < 0 || port > 65535) {
-    throw new Error(`PORT must be a whole number from 0 to 65535, got "${env.PORT}".`);
-  }
+  const port = readPort(env.PORT, 8080, 'PORT');
   const root = path.resolve(__dirname, '..');
   return {
     port,
     host: env.HOST ?? '0.0.0.0',
     dataDir: path.resolve(env.DATA_DIR ?? path.join(root, 'data')),
     webDir: env.WEB_DIR === '' ? null : path.resolve(env.WEB_DIR ?? path.join(root, 'dist')),
-    jwtSecret: env.JWT_SECRET ?? null,
-    smtpUrl: env.SMTP_URL ?? null,
+    jwtSecret: env.JWT_SECRET || null,
+    smtpUrl: env.SMTP_URL || null,
+    smtpPort: readPort(env.SMTP_PORT, 0, 'SMTP_PORT'),
     mailFrom: env.MAIL_FROM ?? 'Ringwell <ringwell@northfold.example>',
     publicUrl: env.PUBLIC_URL ?? `http://localhost:${port}`,
     seedDemo: env.SEED_DEMO !== 'false',
     nodeEnv: env.NODE_ENV ?? 'development',
   };
+}
+
+function readPort(text: string | undefined, fallback: number, name: string): number {
+  const port = Number(text ?? fallback);
+  if (!Number.isInteger(port) || port < 0 || port > 65535) {
+    throw new Error(`${name} must be a whole number from 0 to 65535, got "${text}".`);
+  }
+  return port;
 }

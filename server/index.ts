@@ -1,22 +1,44 @@
 // Ringwell's server process: opens the database under DATA_DIR (migrating it), seeds the demo team
-// on first start, and serves the API and the exported web app.
+// on first start, starts the local mail capture when no SMTP_URL is set, and serves the API and the
+// exported web app.
 import { openDatabase } from '../db/client';
 import { demoAccounts, DEMO_TEAM, seedDemo } from '../db/seed';
-import { createApp } from './app';
+import { createApp, createAppContext } from './app';
 import { hashPassword } from './auth/passwords';
+import { loadOrCreateJwtSecret } from './auth/secret';
 import { readConfig } from './config';
+import { startCaptureServer } from './mail/captureServer';
+import { createMailer } from './mail/mailer';
+import { seedDemoWorkspace } from './services/demoWorkspace';
 
 export async function startServer() {
   const config = readConfig();
+  const log = (message: string, error?: unknown) => console.error(`[ringwell] ${message}`, error ?? '');
   const database = await openDatabase({ dataDir: config.dataDir });
+  const capture = config.smtpUrl ? null : await startCaptureServer({ db: database.db, port: config.smtpPort, log });
+  const mailer = createMailer({ db: database.db, transport: config.smtpUrl ?? capture!.url, from: config.mailFrom, log });
+  if (capture)
+    console.log(
+      `[ringwell] No SMTP_URL: mail is captured by the local SMTP server on port ${capture.port} (see the admin outbox).`,
+    );
+  const appOptions = {
+    database,
+    mailer,
+    webDir: config.webDir,
+    dataDir: config.dataDir,
+    publicUrl: config.publicUrl,
+    jwtSecret: loadOrCreateJwtSecret(config.dataDir, config.jwtSecret),
+    log,
+  };
   if (config.seedDemo) {
     const seeded = await seedDemo(database.db, hashPassword);
-    if (seeded.seeded) {
+    if (seeded.seeded && seeded.teamId) {
+      await seedDemoWorkspace(createAppContext(appOptions), seeded.teamId);
       console.log(`[ringwell] Seeded the demo team "${DEMO_TEAM}". Sign in with:`);
       for (const a of demoAccounts) console.log(`[ringwell]   ${a.role.padEnd(9)} ${a.email.padEnd(26)} ${a.password}`);
     }
   }
-  const app = createApp({ database, webDir: config.webDir });
+  const app = createApp(appOptions);
   const server = app.listen(config.port, config.host, () => {
     const address = server.address();
     const port = typeof address === 'object' && address ? address.port : config.port;
@@ -24,12 +46,15 @@ export async function startServer() {
   });
   const stop = async () => {
     server.close();
+    await mailer.flush();
+    mailer.close();
+    await capture?.close();
     await database.close();
     process.exit(0);
   };
   process.once('SIGINT', stop);
   process.once('SIGTERM', stop);
-  return { server, database };
+  return { server, database, capture, mailer };
 }
 
 if (require.main === module) {

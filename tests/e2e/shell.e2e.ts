@@ -18,14 +18,12 @@ afterAll(async () => {
 async function signedInPage(viewport: 'phone' | 'wide') {
   const page = await browser.newPage(viewport);
   await page.goto(server.url + '/');
-  const status = await page.evaluate(async () => {
-    const res = await fetch('/api/auth/sign-in', {
-      method: 'POST',
-      headers: { 'Content-Type': 'application/json' },
-      body: JSON.stringify({ email: 'sam@northfold.example', password: 'northfold-engineer' }),
-    });
-    return res.status;
-  });
+  // String expressions run in the browser untouched (a function would be rewritten by Babel).
+  const status = await page.evaluate<number>(`fetch('/api/auth/sign-in', {
+    method: 'POST',
+    headers: { 'Content-Type': 'application/json' },
+    body: JSON.stringify({ email: 'sam@northfold.example', password: 'northfold-engineer' }),
+  }).then((res) => res.status)`);
   expect(status).toBe(200);
   await page.goto(server.url + '/designs');
   await page.getByTestId('app-shell').waitFor({ state: 'visible', timeout: 30_000 });
@@ -33,10 +31,8 @@ async function signedInPage(viewport: 'phone' | 'wide') {
 }
 
 async function loadedFontFamilies(page: import('playwright-core').Page): Promise<string[]> {
-  return page.evaluate(async () => {
-    await document.fonts.ready;
-    return [...document.fonts].filter((f) => f.status === 'loaded').map((f) => f.family.replace(/["']/g, ''));
-  });
+  return page.evaluate<string[]>(`document.fonts.ready.then(() =>
+    Array.from(document.fonts).filter((f) => f.status === 'loaded').map((f) => f.family.replace(/["']/g, '')))`);
 }
 
 it.each([
@@ -49,11 +45,11 @@ it.each([
 
   const families = await loadedFontFamilies(page);
   expect(families.some((f) => /inter/i.test(f))).toBe(true);
-  const headerFont = await page.getByTestId('app-shell').evaluate((el) => getComputedStyle(el.querySelector('[dir], div *') ?? el).fontFamily);
+  const headerFont = await page.getByTestId('app-header').evaluate((el) => getComputedStyle(el.querySelector('div[dir="auto"]') ?? el).fontFamily);
   expect(headerFont).toMatch(/inter/i);
 
   // The page never scrolls sideways on a phone.
-  const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
+  const overflow = await page.evaluate<number>('document.documentElement.scrollWidth - window.innerWidth');
   expect(overflow).toBeLessThanOrEqual(1);
 
   await shot(page, `shell-${viewport}`);

@@ -1,0 +1,5 @@
+import { MyMailScreen } from '@/components/mail/MyMailScreen';
+
+export default function MailRoute() {
+  return <MyMailScreen />;
+}

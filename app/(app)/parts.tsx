@@ -1,0 +1,5 @@
+import { PartsLibraryScreen } from '@/components/parts/PartsLibraryScreen';
+
+export default function PartsRoute() {
+  return <PartsLibraryScreen />;
+}

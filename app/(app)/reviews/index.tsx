@@ -1,0 +1,5 @@
+import { ReviewsScreen } from '@/components/reviews/ReviewsScreen';
+
+export default function ReviewsRoute() {
+  return <ReviewsScreen />;
+}

@@ -1,0 +1,2 @@
+export * from './tokens';
+export { ThemeProvider, useTheme, useLayout, layoutFor, type Layout, type LayoutKind } from './ThemeProvider';
