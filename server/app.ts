@@ -62,6 +62,12 @@ export interface AppOptions {
   dataDir?: string;
   /** Bench capture files. Default <dataDir>/uploads, or a fresh temp dir without a dataDir (tests). */
   uploadsDir?: string;
+  /** POST /api/check, /api/precharge/size and /api/revisions/:id/analyses per user; null: no limit. */
+  analysisRateLimit?: RateLimitRule | null;
+  /** Answer 503 after this many milliseconds. Default 30 s. */
+  requestTimeoutMs?: number;
+  /** Origins allowed to call the API from a browser (CORS). Default: CORS_ORIGINS, else none. */
+  corsOrigins?: string[];
 }
 
 const FIFTEEN_MINUTES = 15 * 60 * 1000;

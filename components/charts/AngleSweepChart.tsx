@@ -31,8 +31,9 @@ export function AngleSweepChart({ sweep, testID = 'angle-sweep-chart' }: { sweep
   const font = { fontFamily: theme.fonts.mono, fontSize: 11 };
   const wx = x(sweep.worst.angle);
   const wy = y(sweep.worst.peakCurrent);
-  const labelLeft = wx > (width - M.right + M.left) / 2;
   const worstLabel = `worst ${sweep.worst.angle.toFixed(1)}°: ${formatEng(sweep.worst.peakCurrent, 'A')}`;
+  // Mono 11 px is about 6.7 px a character: put the label on whichever side of the ring it fits.
+  const labelLeft = wx + 10 + worstLabel.length * 6.7 > width - 4;
   const xTicks = x.ticks(width < 420 ? 4 : 8);
   return (
     <View

@@ -11,6 +11,7 @@ import { StatusBadge } from '@/components/ui/StatusBadge';
 import { ErrorNotice, Loading } from '@/components/ui/States';
 import { Text } from '@/components/ui/Text';
 import { TextField } from '@/components/ui/TextField';
+import { UNIT_OF } from '@/components/ui/UnitField';
 import { describeError, isApiError } from '@/lib/api/client';
 import type { DesignDetail } from '@/lib/contracts';
 import { useAnalysisJob, useCancelJob, useStartSpread } from '@/lib/queries/analyses';
@@ -21,6 +22,13 @@ import type { SpreadComplete } from '@/sim/spread';
 import { PATH_INFO, TOLERANCE_PATHS, type TolerancePath } from '@/sim/spread/paths';
 import { formatEng as eng } from '@/sim/units';
 import { Histogram } from './Histogram';
+
+/** A sampled value in engineering notation with its unit (a load value in whatever its kind is, unitless). */
+function valueText(path: string, v: unknown): string {
+  if (typeof v !== 'number') return String(v);
+  const dim = PATH_INFO[path as TolerancePath]?.dimension;
+  return dim && dim !== 'load' ? eng(v, UNIT_OF[dim], 4) : eng(v, '', 4);
+}
 
 const fmt = (v: number | null | undefined, unit: string) => (v === null || v === undefined || !Number.isFinite(v) ? '—' : eng(v, unit));
 
@@ -259,7 +267,7 @@ function SpreadResultView({ result, onOpenCorner, opening }: { result: SpreadCom
             </Text>
             {Object.entries(wc.values).map(([path, v]) => (
               <Text key={path} mono variant="caption">
-                {PATH_INFO[path as TolerancePath]?.label ?? path} = {String(v)}
+                {PATH_INFO[path as TolerancePath]?.label ?? path} = {valueText(path, v)}
               </Text>
             ))}
             {onOpenCorner ? (

@@ -606,7 +606,7 @@ function mainsSection(w: Writer, data: ReportData): void {
 
   w.heading('Mains power-up');
   w.paragraph(
-    `${String(input.kind ?? 'single-phase')} bridge from ${String(input.voltage ?? '—')} RMS, ${String(input.frequency ?? '50 Hz')}, switched on at ${String(input.angle ?? '90°')}; limiter ${String(limiter.kind ?? 'none')}${limiter.kind === 'ntc' ? ` (R25 ${String(limiter.r25)}, β ${String(limiter.beta)}, starting at ${String(limiter.startTemperature ?? '25 °C')})` : limiter.kind === 'resistor' ? ` (${String(limiter.resistance)})` : ''}.`,
+    `${String(input.kind ?? 'single-phase') === 'three-phase' ? 'Three-phase' : 'Single-phase'} bridge from ${String(input.voltage ?? '—')} RMS, ${String(input.frequency ?? '50 Hz')}, switched on at ${String(input.angle ?? '90°')}; limiter ${String(limiter.kind ?? 'none')}${limiter.kind === 'ntc' ? ` (R25 ${String(limiter.r25)}, β ${String(limiter.beta)}, starting at ${String(limiter.startTemperature ?? '25 °C')})` : limiter.kind === 'resistor' ? ` (${String(limiter.resistance)})` : ''}.`,
     { size: 8.5, colour: colours.muted },
   );
   w.keyValues(
@@ -921,6 +921,11 @@ export async function renderMarginReport(data: ReportData): Promise<Buffer> {
 
   // ----- parameters -----
   w.heading('Circuit parameters');
+  if (designRecord && typeof designRecord === 'object' && 'mains' in designRecord)
+    w.paragraph(
+      'A mains design: the rows below are its DC side as the engine sees it. The source is the rectified mains peak (√2·V less two diode drops), the source resistance and inductance are the line loop with the two conducting diodes, and the precharge resistance is the limiter at switch-on.',
+      { size: 8.5, colour: colours.muted },
+    );
   w.keyValues(parameterRows(design), 190);
 
   // ----- precharge sizing -----

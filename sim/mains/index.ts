@@ -23,7 +23,6 @@ export {
   simulateMains,
   estimateMainsOdeCost,
   MAINS_ENGINE_VERSION,
-  DISAGREEMENT_WARNING,
   CROSS_CHECK_BUDGET,
   NONLINEAR_EVALUATION_BUDGET,
 } from './simulate';

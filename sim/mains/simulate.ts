@@ -13,6 +13,8 @@
  */
 import { DesignError } from '../errors';
 import { MAX_POINTS } from '../design';
+// One threshold for both engines: a disagreement above it is shown to the user.
+import { DISAGREEMENT_WARNING } from '../simulate';
 import * as roots from '../solvers/roots';
 import * as expmModule from '../solvers/expm';
 import { runExact, type ExactCounters } from './exact';
@@ -79,7 +81,7 @@ export interface MainsResult {
   events: BridgeEvent[];
 }
 
-export const DISAGREEMENT_WARNING = 1e-6;
+
 /** odex cross-checks the exact path when its estimated cost is below this many evaluations. */
 export const CROSS_CHECK_BUDGET = 120_000;
 /** Estimated evaluations beyond which the nonlinear path refuses the design up front. */

