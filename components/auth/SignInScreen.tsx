@@ -51,7 +51,8 @@ export function SignInScreen() {
       <View testID="sign-in" style={{ width: '100%', maxWidth: 440, alignSelf: 'center', gap: theme.space.xl }}>
         <View style={{ flexDirection: 'row', alignItems: 'center', gap: theme.space.m }}>
           <Logo size={40} />
-          <View>
+          {/* flexShrink lets the tagline wrap beside the logo on a phone instead of running off. */}
+          <View style={{ flexShrink: 1 }}>
             <Text variant="display" accessibilityRole="header">
               Ringwell
             </Text>

@@ -79,6 +79,8 @@ export interface ReportData {
   precharge: { options: unknown; result: unknown; createdAt: Date }[];
   /** Mains designs: the latest stored switch-on angle sweep and cold/hot comparison, if run. */
   mains?: { sweep: unknown; coldHot: unknown };
+  /** Tolerance spreads run on this revision (sim/spread results), oldest first. */
+  spread?: { options: unknown; result: unknown; createdAt: Date }[];
 }
 
 export async function buildMarginReport(ctx: AppContext, teamId: string, revisionId: string) {
@@ -116,6 +118,9 @@ export async function buildMarginReport(ctx: AppContext, teamId: string, revisio
     policy: revision.policy as StoredPolicy,
     precharge: runs
       .filter((r) => r.kind === 'precharge')
+      .map((r) => ({ options: r.options, result: r.result, createdAt: r.createdAt })),
+    spread: runs
+      .filter((r) => r.kind === 'spread')
       .map((r) => ({ options: r.options, result: r.result, createdAt: r.createdAt })),
     mains: {
       sweep: runs.filter((r) => r.kind === 'mains-sweep').at(-1)?.result ?? null,
@@ -590,13 +595,86 @@ const num = (v: unknown): number | null => (typeof v === 'number' && Number.isFi
 const degreesText = (v: unknown) => (num(v) === null ? '—' : `${(v as number).toFixed(1)}°`);
 const celsius = (kelvin: number) => `${(kelvin - 273.15).toFixed(0)} °C`;
 
+interface SpreadFigures {
+  status?: string;
+  method?: string;
+  distribution?: string | null;
+  seed?: number | null;
+  prng?: string | null;
+  samples?: number;
+  parameters?: { path: string; min: number; max: number; nominal: number }[];
+  checks?: {
+    label: string;
+    unit: string;
+    nominal: { marginPercent: number | null; status: string };
+    marginPercent: { min: number } | null;
+    worstStatus: string;
+    worst: { values: Record<string, number> } | null;
+  }[];
+  worstCase?: { label: string; marginPercent: number; status: string; values: Record<string, number> } | null;
+}
+
+const percentText = (x: number | null | undefined) => (typeof x === 'number' && Number.isFinite(x) ? `${x.toFixed(1)} %` : '—');
+
+/** A tolerance spread (sim/spread): how it was sampled, the worst margin per check and where. */
+function spreadSection(w: Writer, run: { options: unknown; result: unknown; createdAt: Date }): void {
+  const r = (run.result ?? {}) as SpreadFigures;
+  if (r.status !== 'complete') return;
+  const how =
+    r.method === 'corners'
+      ? `all ${r.samples} corners of the tolerance bands`
+      : `${r.samples} Monte Carlo samples (${r.distribution ?? 'uniform'}, seed ${r.seed}, ${r.prng ?? 'seeded generator'})`;
+  w.paragraph(`Run of ${utcStamp(run.createdAt)}: ${how}; other values held at nominal.`, { size: 8, colour: colours.muted });
+  const parameters = r.parameters ?? [];
+  if (parameters.length > 0) {
+    w.keyValues(
+      parameters.map((p) => [
+        p.path,
+        `${p.min.toPrecision(4)} to ${p.max.toPrecision(4)} (nominal ${p.nominal.toPrecision(4)}), SI units`,
+      ]),
+      190,
+    );
+  }
+  const checks = (r.checks ?? []).filter((c) => c.worstStatus !== 'not-checked');
+  if (checks.length > 0) {
+    simpleTable(
+      w,
+      [
+        { title: 'Check', width: 190 },
+        { title: 'Nominal margin', width: 90, mono: true },
+        { title: 'Worst margin', width: 90, mono: true },
+        { title: 'Worst status', width: 100, center: true },
+      ],
+      checks.map((c) => [
+        c.label,
+        percentText(c.nominal.marginPercent),
+        percentText(c.marginPercent?.min),
+        STATUS_WORD[c.worstStatus as EngineCheck['status']] ?? c.worstStatus,
+      ]),
+    );
+  }
+  if (r.worstCase) {
+    const where = Object.entries(r.worstCase.values)
+      .map(([path, value]) => `${path} = ${value.toPrecision(4)}`)
+      .join(', ');
+    w.paragraph(
+      `Worst case: ${r.worstCase.label}, margin ${percentText(r.worstCase.marginPercent)} (${STATUS_WORD[r.worstCase.status as EngineCheck['status']] ?? r.worstCase.status}), at ${where || 'the nominal values'}.`,
+      { size: 8.5, font: fonts.semibold },
+    );
+  }
+}
+
 /** The rectifier figures of a mains design: worst angle, inrush, diode surge, limiter, cold vs hot. */
 function mainsSection(w: Writer, data: ReportData): void {
   const metrics = data.results.metrics;
   const checks = data.results.checks;
   const input = (data.designInput as { mains?: Record<string, unknown> }).mains ?? {};
   const sweep = (data.mains?.sweep ?? null) as MainsSweepFigures | null;
-  const coldHot = (data.mains?.coldHot ?? null) as { cold: MainsCaseFigures; hot: MainsCaseFigures; surgePulseDuration: number } | null;
+  const coldHot = (data.mains?.coldHot ?? null) as {
+    cold: MainsCaseFigures;
+    hot: MainsCaseFigures;
+    surgePulseDuration: number;
+  } | null;
   const tHalf = num(metrics.surgePulseDuration);
   const surge = checks.find((c) => c.id === 'diode-surge-current');
   const diodeI2t = checks.find((c) => c.id === 'diode-i2t');
@@ -656,7 +734,10 @@ function mainsSection(w: Writer, data: ReportData): void {
       ]),
     );
   if (coldHot) {
-    w.paragraph('Cold start against hot restart of the NTC, each at its own worst switch-on angle:', { size: 8.5, font: fonts.semibold });
+    w.paragraph('Cold start against hot restart of the NTC, each at its own worst switch-on angle:', {
+      size: 8.5,
+      font: fonts.semibold,
+    });
     const row = (label: string, f: (c: MainsCaseFigures) => string) => [label, f(coldHot.cold), f(coldHot.hot)];
     const status = (c: MainsCaseFigures, id: string) => {
       const check = c.checks.find((x) => x.id === id);
@@ -675,7 +756,10 @@ function mainsSection(w: Writer, data: ReportData): void {
         row('Peak inrush', (c) => formatEng(extreme(c.metrics, 'peakCurrent')?.value ?? null, 'A')),
         row('Line I²t', (c) => formatEng(num(c.metrics.i2t), 'A²s') + status(c, 'fuse-i2t')),
         row('Limiter energy', (c) => formatEng(num(c.metrics.limiterEnergy), 'J')),
-        row('Diode surge equivalent', (c) => formatEng(num(c.metrics.surgeEquivalentCurrent), 'A') + status(c, 'diode-surge-current')),
+        row(
+          'Diode surge equivalent',
+          (c) => formatEng(num(c.metrics.surgeEquivalentCurrent), 'A') + status(c, 'diode-surge-current'),
+        ),
         row('Diode I²t', (c) => formatEng(num(c.metrics.diodeI2t), 'A²s') + status(c, 'diode-i2t')),
       ],
     );
@@ -932,6 +1016,12 @@ export async function renderMarginReport(data: ReportData): Promise<Buffer> {
   if (data.precharge.length > 0) {
     w.heading('Precharge sizing');
     for (const run of data.precharge) prechargeSection(w, run);
+  }
+
+  // ----- tolerance spread -----
+  if (data.spread && data.spread.length > 0) {
+    w.heading('Tolerance spread');
+    for (const run of data.spread) spreadSection(w, run);
   }
 
   // ----- assumptions -----

@@ -6,6 +6,7 @@ import { analysisRuns } from '@/db/schema';
 import { drainJobs } from '@/server/services/jobs';
 import { closeEngineWorkers } from '@/server/services/engine';
 import { createTestWorld, type TestWorld } from '@/tests/helpers/testApp';
+import { pdfText } from '@/tests/helpers/pdfText';
 import { makeDesign, makeProject, makeRevision, presets, prechargePreset, type Preset } from '@/tests/helpers/fixtures';
 
 jest.setTimeout(180_000);
@@ -78,6 +79,21 @@ describe('the spread job', () => {
     expect(again.body.id).toBe(done.result.id);
     const rows = await world.database.db.select().from(analysisRuns).where(eq(analysisRuns.revisionId, revisionId));
     expect(rows.filter((r) => r.kind === 'spread')).toHaveLength(1);
+
+    // The margin report files the spread with the revision: how it sampled and the worst case.
+    const report = await sam
+      .get(`/api/revisions/${revisionId}/report.pdf`)
+      .buffer(true)
+      .parse((res, callback) => {
+        const chunks: Buffer[] = [];
+        res.on('data', (chunk: Buffer) => chunks.push(chunk));
+        res.on('end', () => callback(null, Buffer.concat(chunks)));
+      })
+      .expect(200);
+    const text = (await pdfText(report.body as Buffer)).text.replace(/\s+/g, ' ');
+    expect(text).toContain('Tolerance spread');
+    expect(text).toContain('all 8 corners of the tolerance bands');
+    expect(text).toContain(`Worst case: ${result.worstCase.label}`);
   });
 
   it('is cancelled on request and stores nothing', async () => {
