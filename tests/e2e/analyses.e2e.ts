@@ -3,7 +3,7 @@
 // end and the histograms appear), opens stability and reads the verdict; on "Gate-drive test" the
 // snubber screen proposes Rs and Cs with the before/after waveforms.
 import type { Page } from 'playwright-core';
-import { openBrowser, shot as viewportShot, startTestServer, type TestBrowser, type TestServer } from './harness';
+import { openBrowser, shot, startTestServer, type TestBrowser, type TestServer } from './harness';
 
 let server: TestServer;
 let browser: TestBrowser;
@@ -19,26 +19,6 @@ afterAll(async () => {
 });
 
 const T = 30_000;
-
-/** A screenshot of the whole screen (the app scrolls inside its containers; see review-flow.e2e.ts). */
-async function shot(page: Page, name: string) {
-  const size = page.viewportSize()!;
-  const tallest = await page.evaluate(() => {
-    let extra = 0;
-    for (const el of Array.from(document.querySelectorAll<HTMLElement>('div'))) {
-      const overflow = getComputedStyle(el).overflowY;
-      if (el.scrollHeight > el.clientHeight + 1 && overflow !== 'visible' && overflow !== 'hidden')
-        extra = Math.max(extra, el.scrollHeight - el.clientHeight);
-    }
-    return extra;
-  });
-  if (tallest > 0) {
-    await page.setViewportSize({ width: size.width, height: Math.min(size.height + tallest, 8000) });
-    await page.waitForTimeout(400);
-  }
-  await viewportShot(page, name);
-  if (tallest > 0) await page.setViewportSize(size);
-}
 
 async function signIn(page: Page) {
   await page.context().clearCookies();

@@ -7,7 +7,10 @@ import os from 'node:os';
 import path from 'node:path';
 import type { Page } from 'playwright-core';
 import { syntheticCsv } from '@/tests/fixtures/captures/synthetic';
-import { openBrowser, shot as viewportShot, startTestServer, type TestBrowser, type TestServer } from './harness';
+import { openBrowser, shot, startTestServer, type TestBrowser, type TestServer } from './harness';
+
+// The apply step flaked once under load (see below); one retry, with the first error logged.
+jest.retryTimes(1, { logErrorsBeforeRetry: true });
 
 let server: TestServer;
 let browser: TestBrowser;
@@ -37,25 +40,6 @@ afterAll(async () => {
   await server?.stop();
   if (dir) fs.rmSync(dir, { recursive: true, force: true });
 });
-
-/** The whole screen: the app scrolls inside its containers, so the window is made tall enough. */
-async function shot(page: Page, name: string) {
-  const size = page.viewportSize()!;
-  const tallest = await page.evaluate(() => {
-    let extra = 0;
-    for (const el of Array.from(document.querySelectorAll<HTMLElement>('div'))) {
-      const oy = getComputedStyle(el).overflowY;
-      if (el.scrollHeight > el.clientHeight + 1 && oy !== 'visible' && oy !== 'hidden') extra = Math.max(extra, el.scrollHeight - el.clientHeight);
-    }
-    return extra;
-  });
-  if (tallest > 0) {
-    await page.setViewportSize({ width: size.width, height: Math.min(size.height + tallest, 8000) });
-    await page.waitForTimeout(400);
-  }
-  await viewportShot(page, name);
-  if (tallest > 0) await page.setViewportSize(size);
-}
 
 async function signIn(page: Page, role: 'engineer' | 'admin') {
   await page.context().clearCookies();
@@ -121,7 +105,15 @@ describe.each(['wide', 'phone'] as const)('at the %s viewport', (viewport) => {
     expect(result).toMatch(/Source inductance\s*(9\d\.\d+|10[01]\.\d+) mH/);
     expect(result).toMatch(/Source resistance\s*2[78]\d(\.\d+)? Ω/);
     await page.getByTestId('capture-fit-apply').click();
-    await page.getByTestId('capture-fit-applied').waitFor({ timeout: T });
+    // Seen once on a loaded CI machine: "applied" never showed at the phone size. Keep a picture of
+    // the screen when that happens, so the cause can be read off it.
+    await page
+      .getByTestId('capture-fit-applied')
+      .waitFor({ timeout: T })
+      .catch(async (error) => {
+        await shot(page, `captures-${viewport}-03-fit-apply-FAILED`);
+        throw error;
+      });
     await page.waitForTimeout(800);
     await shot(page, `captures-${viewport}-03-fit-applied`);
 

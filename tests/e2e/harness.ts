@@ -118,10 +118,31 @@ export async function openBrowser(): Promise<TestBrowser> {
   };
 }
 
-/** Saves a full-page screenshot under tests/e2e/artifacts/ (git-ignored) and returns its path. */
+/**
+ * Saves a screenshot of the whole screen under tests/e2e/artifacts/ (git-ignored) and returns its
+ * path. The app scrolls inside its own containers (the page itself never scrolls), so a full-page
+ * shot would show only the first screenful: the window is made as tall as the longest scrolling
+ * content for the shot, then put back.
+ */
 export async function shot(page: Page, name: string): Promise<string> {
   fs.mkdirSync(artifactsDir, { recursive: true });
   const file = path.join(artifactsDir, `${name}.png`);
+  const size = page.viewportSize();
+  // A string expression runs in the browser untouched (a function would be rewritten by Babel).
+  const tallest = await page.evaluate<number>(`(() => {
+    let extra = 0;
+    for (const el of Array.from(document.querySelectorAll('div'))) {
+      const overflow = getComputedStyle(el).overflowY;
+      if (el.scrollHeight > el.clientHeight + 1 && overflow !== 'visible' && overflow !== 'hidden')
+        extra = Math.max(extra, el.scrollHeight - el.clientHeight);
+    }
+    return extra;
+  })()`);
+  if (size && tallest > 0) {
+    await page.setViewportSize({ width: size.width, height: Math.min(size.height + tallest, 8000) });
+    await page.waitForTimeout(400);
+  }
   await page.screenshot({ path: file, fullPage: true });
+  if (size && tallest > 0) await page.setViewportSize(size);
   return file;
 }

@@ -1,8 +1,7 @@
 // Issue 9 in a real browser, at a phone and a wide viewport: the engineer creates a design from the
 // mains power-up preset, sees the live check with the rectifier's checks, opens the mains screen
 // and finds the worst switch-on angle marked on the sweep and the cold/hot table.
-import type { Page } from 'playwright-core';
-import { openBrowser, shot as viewportShot, startTestServer, type TestBrowser, type TestServer } from './harness';
+import { openBrowser, shot, startTestServer, type TestBrowser, type TestServer } from './harness';
 
 let server: TestServer;
 let browser: TestBrowser;
@@ -18,26 +17,6 @@ afterAll(async () => {
 });
 
 const T = 60_000;
-
-/** The app scrolls inside its own containers: grow the window to the longest content for the shot. */
-async function shot(page: Page, name: string) {
-  const size = page.viewportSize()!;
-  const tallest = await page.evaluate(() => {
-    let extra = 0;
-    for (const el of Array.from(document.querySelectorAll<HTMLElement>('div'))) {
-      const overflow = getComputedStyle(el).overflowY;
-      if (el.scrollHeight > el.clientHeight + 1 && overflow !== 'visible' && overflow !== 'hidden')
-        extra = Math.max(extra, el.scrollHeight - el.clientHeight);
-    }
-    return extra;
-  });
-  if (tallest > 0) {
-    await page.setViewportSize({ width: size.width, height: Math.min(size.height + tallest, 8000) });
-    await page.waitForTimeout(400);
-  }
-  await viewportShot(page, name);
-  if (tallest > 0) await page.setViewportSize(size);
-}
 
 async function until<T>(read: () => Promise<T>, check: (value: T) => boolean, what: string, timeout = T): Promise<T> {
   const end = Date.now() + timeout;

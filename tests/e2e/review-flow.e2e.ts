@@ -5,7 +5,7 @@
 // downloads the margin report (a PDF); the admin sees the outbox and the audit log.
 import fs from 'node:fs';
 import type { Page } from 'playwright-core';
-import { openBrowser, shot as viewportShot, startTestServer, type TestBrowser, type TestServer } from './harness';
+import { openBrowser, shot, startTestServer, type TestBrowser, type TestServer } from './harness';
 
 let server: TestServer;
 let browser: TestBrowser;
@@ -21,34 +21,6 @@ afterAll(async () => {
 });
 
 const T = 30_000;
-
-/**
- * A screenshot of the whole screen. The app scrolls inside its own containers (the page itself
- * never scrolls), so a full-page shot would show only the first screenful: the window is made as
- * tall as the longest scrolling content for the shot, then put back.
- */
-async function shot(page: Page, name: string) {
-  const size = page.viewportSize()!;
-  const tallest = await page.evaluate(() => {
-    let extra = 0;
-    for (const el of Array.from(document.querySelectorAll<HTMLElement>('div'))) {
-      if (
-        el.scrollHeight > el.clientHeight + 1 &&
-        getComputedStyle(el).overflowY !== 'visible' &&
-        getComputedStyle(el).overflowY !== 'hidden'
-      ) {
-        extra = Math.max(extra, el.scrollHeight - el.clientHeight);
-      }
-    }
-    return extra;
-  });
-  if (tallest > 0) {
-    await page.setViewportSize({ width: size.width, height: Math.min(size.height + tallest, 8000) });
-    await page.waitForTimeout(400);
-  }
-  await viewportShot(page, name);
-  if (tallest > 0) await page.setViewportSize(size);
-}
 
 async function signIn(page: Page, role: 'engineer' | 'reviewer' | 'admin') {
   // The browser profile is shared between tests: start each sign-in from no session.
