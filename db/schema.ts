@@ -225,6 +225,52 @@ export const analysisRuns = pgTable(
   (t) => [uniqueIndex('analysis_runs_key_unique').on(t.revisionId, t.kind, t.optionsHash)],
 );
 
+export const jobStateEnum = pgEnum('job_state', ['queued', 'running', 'done', 'cancelled', 'failed']);
+
+/**
+ * Background analyses (the tolerance spread) waiting for, or taken by, a worker. Every Ringwell
+ * process runs a worker that claims the oldest queued job with `FOR UPDATE SKIP LOCKED`, so several
+ * processes sharing one PostgreSQL server split the work and each job runs once.
+ */
+export const analysisJobs = pgTable(
+  'analysis_jobs',
+  {
+    id: uuid('id').primaryKey().defaultRandom(),
+    teamId: uuid('team_id')
+      .notNull()
+      .references(() => teams.id, { onDelete: 'restrict' }),
+    revisionId: uuid('revision_id')
+      .notNull()
+      .references(() => revisions.id, { onDelete: 'restrict' }),
+    kind: analysisKindEnum('kind').notNull(),
+    options: jsonb('options').notNull(),
+    optionsHash: text('options_hash').notNull(),
+    requestedBy: uuid('requested_by').references(() => users.id, { onDelete: 'set null' }),
+    /** Who asked and from where, for the audit entry written when the result is stored. */
+    audit: jsonb('audit').notNull().default({}),
+    state: jobStateEnum('state').notNull().default('queued'),
+    done: integer('done').notNull().default(0),
+    total: integer('total').notNull(),
+    cancelRequested: boolean('cancel_requested').notNull().default(false),
+    /** The process that took it (host:pid:random). */
+    worker: text('worker'),
+    attempts: integer('attempts').notNull().default(0),
+    runId: uuid('run_id').references(() => analysisRuns.id, { onDelete: 'set null' }),
+    error: jsonb('error'),
+    createdAt: createdAt(),
+    startedAt: stamp('started_at'),
+    heartbeatAt: stamp('heartbeat_at'),
+    endedAt: stamp('ended_at'),
+  },
+  (t) => [
+    index('analysis_jobs_queue_idx').on(t.state, t.createdAt),
+    // A second request for the same analysis while one is queued or running joins it.
+    uniqueIndex('analysis_jobs_active_unique')
+      .on(t.revisionId, t.kind, t.optionsHash)
+      .where(sql`state in ('queued', 'running')`),
+  ],
+);
+
 export const reviewStateEnum = pgEnum('review_state', ['requested', 'approved', 'changes-requested', 'superseded']);
 
 /** One row per (request, reviewer): rows of one request share requestId. */
@@ -415,6 +461,7 @@ export type Project = typeof projects.$inferSelect;
 export type DesignRow = typeof designs.$inferSelect;
 export type RevisionRow = typeof revisions.$inferSelect;
 export type AnalysisRunRow = typeof analysisRuns.$inferSelect;
+export type AnalysisJobRow = typeof analysisJobs.$inferSelect;
 export type ReviewRow = typeof reviews.$inferSelect;
 export type ReviewCommentRow = typeof reviewComments.$inferSelect;
 export type ComponentPart = typeof componentParts.$inferSelect;

@@ -14,6 +14,8 @@ import { createTokenService } from './auth/tokens';
 import type { AppContext, RateLimits } from './context';
 import { apiNotFound, errorHandler } from './errors';
 import { createRecordingMailer, type Mailer } from './mail/mailer';
+import { analysisJobRunner } from './services/analyses';
+import { startJobWorker } from './services/jobs';
 import { adminRouter } from './routes/admin';
 import { analysesRouter } from './routes/analyses';
 import { benchRouter } from './routes/bench';
@@ -68,6 +70,8 @@ export interface AppOptions {
   requestTimeoutMs?: number;
   /** Origins allowed to call the API from a browser (CORS). Default: CORS_ORIGINS, else none. */
   corsOrigins?: string[];
+  /** Run a background-analysis worker in this process. Default true (JOB_WORKER=false turns it off). */
+  jobWorker?: boolean;
 }
 
 const FIFTEEN_MINUTES = 15 * 60 * 1000;
@@ -108,6 +112,8 @@ export function createAppContext(options: AppOptions): AppContext {
 export function createApp(options: AppOptions): Express {
   const startedAt = Date.now();
   const ctx = createAppContext(options);
+  if (options.jobWorker ?? process.env.JOB_WORKER !== 'false')
+    startJobWorker({ database: options.database, runner: analysisJobRunner(ctx), log: ctx.log });
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');

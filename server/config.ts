@@ -5,6 +5,8 @@ export interface ServerConfig {
   port: number;
   host: string;
   dataDir: string;
+  /** A PostgreSQL server to use instead of the embedded database under dataDir, or null. */
+  databaseUrl: string | null;
   /** Directory holding the exported web build, or null to serve the API only. */
   webDir: string | null;
   jwtSecret: string | null;
@@ -24,6 +26,7 @@ export function readConfig(env: NodeJS.ProcessEnv = process.env): ServerConfig {
     port,
     host: env.HOST ?? '0.0.0.0',
     dataDir: path.resolve(env.DATA_DIR ?? path.join(root, 'data')),
+    databaseUrl: env.DATABASE_URL || null,
     webDir: env.WEB_DIR === '' ? null : path.resolve(env.WEB_DIR ?? path.join(root, 'dist')),
     jwtSecret: env.JWT_SECRET || null,
     smtpUrl: env.SMTP_URL || null,

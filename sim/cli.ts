@@ -131,7 +131,9 @@ function stabilityOf(design: ReturnType<typeof parseDesign>): StabilityResult | 
 /** The spread of a design file over its own `tolerances` section. */
 export async function spreadOfFile(path: string, options: SpreadCliOptions): Promise<SpreadResult | Failed> {
   try {
-    const design = parseDesign(JSON.parse(readFileSync(path, 'utf8')));
+    const input: unknown = JSON.parse(readFileSync(path, 'utf8'));
+    const isMains = input !== null && typeof input === 'object' && !Array.isArray(input) && 'mains' in input;
+    const design = isMains ? parseMainsDesign(input) : parseDesign(input);
     if (!design.tolerances || Object.keys(design.tolerances).length === 0)
       throw new DesignError('the design has no tolerances section to spread', 'tolerances');
     return await runSpread(design, design.tolerances, { ...options, policy: resolvePolicy(undefined, design.derating) });
@@ -175,7 +177,8 @@ export function formatSummary(output: CheckOutput): string {
   }
   const m = output.metrics;
   const s = output.solvers;
-  if ('surgeEquivalentCurrent' in m) return formatMainsSummary(output, m as unknown as MainsMetrics);
+  if ('surgeEquivalentCurrent' in m)
+    return [formatMainsSummary(output, m as unknown as MainsMetrics), ...analysisLines(output)].join('\n');
   const lines = [
     `${output.file}`,
     `  peak capacitor voltage  ${at(m.peakCapacitorVoltage, 'V')}`,
@@ -219,6 +222,13 @@ export function formatSummary(output: CheckOutput): string {
     for (const check of output.checks) lines.push(`    [${check.status}] ${check.label}: ${check.message}`);
   }
   for (const notice of output.notices) lines.push(`  ${notice.title.toUpperCase()}: ${notice.text}`);
+  lines.push(...analysisLines(output));
+  return lines.join('\n');
+}
+
+/** The stability and spread lines of the readable summary (DC and mains designs alike). */
+function analysisLines(output: CheckSuccess): string[] {
+  const lines: string[] = [];
   if (output.stability)
     lines.push(
       'error' in output.stability
@@ -234,7 +244,7 @@ export function formatSummary(output: CheckOutput): string {
           (sp.worstCase ? `, ${sp.worstCase.label} margin ${sp.worstCase.marginPercent.toFixed(1)} %` : ''),
       );
   }
-  return lines.join('\n');
+  return lines;
 }
 
 const USAGE =

@@ -4,7 +4,7 @@
 import { RATING_KEYS, RATING_DIMENSIONS, type RatingKey } from '@/sim/design';
 import { formatEng, type Dimension } from '@/sim/units';
 import { readQuantity, UNIT_OF } from '@/components/ui/UnitField';
-import type { SketchParts } from './CircuitSketch';
+import { mainsSketchOf, type SketchParts } from './CircuitSketch';
 
 export type Draft = Record<string, unknown>;
 
@@ -262,6 +262,7 @@ export function sketchParts(draft: Draft): SketchParts {
   const rs = quantityOf(draft, 'source.resistance', 'resistance') ?? 0;
   const ls = quantityOf(draft, 'source.inductance', 'inductance') ?? 0;
   return {
+    mains: mainsSketchOf(draft),
     sourceVoltage: quantityOf(draft, 'source.voltage', 'voltage'),
     sourceImpedance: rs > 0 || ls > 0,
     precharge: present('precharge')

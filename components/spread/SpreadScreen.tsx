@@ -18,8 +18,8 @@ import { useAnalysisJob, useCancelJob, useStartSpread } from '@/lib/queries/anal
 import { can, useMe } from '@/lib/queries/auth';
 import { useCreateDesign, useDesign } from '@/lib/queries/designs';
 import { useLayout, useTheme } from '@/lib/theme';
-import type { SpreadComplete } from '@/sim/spread';
-import { PATH_INFO, TOLERANCE_PATHS, type TolerancePath } from '@/sim/spread/paths';
+import type { MetricSpread, SpreadComplete } from '@/sim/spread';
+import { DC_TOLERANCE_PATHS, MAINS_ONLY_PATHS, MAINS_SHARED_PATHS, PATH_INFO, type TolerancePath } from '@/sim/spread/paths';
 import { formatEng as eng } from '@/sim/units';
 import { Histogram } from './Histogram';
 
@@ -27,10 +27,17 @@ import { Histogram } from './Histogram';
 function valueText(path: string, v: unknown): string {
   if (typeof v !== 'number') return String(v);
   const dim = PATH_INFO[path as TolerancePath]?.dimension;
+  // Kelvin without prefixes: "3500 K", not "3.5 kK".
+  if (dim === 'temperature') return `${Number(v.toPrecision(5))} K`;
   return dim && dim !== 'load' ? eng(v, UNIT_OF[dim], 4) : eng(v, '', 4);
 }
 
-const fmt = (v: number | null | undefined, unit: string) => (v === null || v === undefined || !Number.isFinite(v) ? '—' : eng(v, unit));
+const fmt = (v: number | null | undefined, unit: string) => {
+  if (v === null || v === undefined || !Number.isFinite(v)) return '—';
+  if (unit === '°') return `${v.toFixed(2)}°`;
+  if (unit === 'K') return `${Number(v.toPrecision(4))} K`;
+  return eng(v, unit);
+};
 
 interface Row {
   on: boolean;
@@ -48,11 +55,21 @@ const DEFAULT_ON: Partial<Record<TolerancePath, Partial<Row>>> = {
   'filter.inductance': { percent: '10' },
   'precharge.resistance': { percent: '5' },
   'load.value': { percent: '10' },
+  // Mains: ±10 % is the usual supply tolerance of a 230 V network; an inrush NTC's R25 is commonly
+  // ±20 % and a wirewound limiter ±5 % (common practice; the user sets the part's own figure).
+  'mains.voltage': { percent: '10' },
+  'mains.limiter.r25': { percent: '20' },
+  'mains.limiter.resistance': { percent: '5' },
 };
+
+/** The paths this design offers: a mains design (with a mains section) has its own. */
+function pathsOf(draft: Draft): readonly TolerancePath[] {
+  return getIn(draft, 'mains') != null ? [...MAINS_ONLY_PATHS, ...MAINS_SHARED_PATHS] : DC_TOLERANCE_PATHS;
+}
 
 function initialRows(draft: Draft): Partial<Record<TolerancePath, Row>> {
   const rows: Partial<Record<TolerancePath, Row>> = {};
-  for (const path of TOLERANCE_PATHS) {
+  for (const path of pathsOf(draft)) {
     if (path.startsWith('initial.')) continue;
     if (getIn(draft, path) === undefined || getIn(draft, path) === null) continue;
     const d = DEFAULT_ON[path];
@@ -279,6 +296,7 @@ function SpreadResultView({ result, onOpenCorner, opening }: { result: SpreadCom
         )}
         {result.invalid.count > 0 ? <Text color={theme.color.status.fail}>{result.invalid.count} samples could not run and count as fails.</Text> : null}
       </Card>
+      {result.subject === 'mains' && result.mains ? <MainsMetrics result={result} /> : null}
       <Card title="Histograms" subtitle="Dashed lines: the part ratings.">
         <View style={{ flexDirection: layout.isWide ? 'row' : 'column', flexWrap: 'wrap', gap: theme.space.m }}>
           {result.histograms.map((h) => (
@@ -304,5 +322,40 @@ function SpreadResultView({ result, onOpenCorner, opening }: { result: SpreadCom
         ))}
       </Card>
     </View>
+  );
+}
+
+/** The mains metrics a reviewer reads first, nominal and over the samples. */
+const MAINS_TABLE = ['peakCurrent', 'switchOnAngle', 'surgeEquivalentCurrent', 'diodeI2t', 'i2t', 'limiterEnergy', 'peakCapacitorVoltage'];
+
+function MainsMetrics({ result }: { result: SpreadComplete }) {
+  const theme = useTheme();
+  const mains = result.mains!;
+  const rows = MAINS_TABLE.map((key) => result.metrics.find((m) => m.key === key)).filter(
+    (m): m is MetricSpread => !!m && m.count > 0,
+  );
+  const check = mains.angleCheck[0];
+  const how =
+    mains.angleMode === 'search'
+      ? `Each corner ran at its own worst switch-on angle (a ${mains.sweep.step}° sweep from ${mains.sweep.from}° to ${mains.sweep.to}°, refined).`
+      : `Every sample ran at the nominal design's worst switch-on angle, ${mains.nominalAngle.toFixed(2)}°.` +
+        (check
+          ? ` Searched again, the largest inrush moves to ${check.searchedAngle.toFixed(2)}° and changes by ${Math.abs(check.differencePercent) < 0.001 ? 'under 0.001' : check.differencePercent.toPrecision(2)} %.`
+          : '');
+  return (
+    <Card title="Inrush over the spread" subtitle={how} testID="spread-mains-metrics">
+      {rows.map((m) => (
+        <View
+          key={m.key}
+          style={{ flexDirection: 'row', flexWrap: 'wrap', gap: theme.space.s, borderTopWidth: 1, borderColor: theme.color.hairline, paddingVertical: 6 }}
+          testID={`spread-metric-${m.key}`}
+        >
+          <Text style={{ flex: 1, minWidth: 160 }}>{m.label}</Text>
+          <Text mono variant="caption">
+            nominal {fmt(m.nominal, m.unit)} · {fmt(m.min, m.unit)} … {fmt(m.max, m.unit)}
+          </Text>
+        </View>
+      ))}
+    </Card>
   );
 }

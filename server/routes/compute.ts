@@ -11,11 +11,9 @@ import {
   parseMainsColdHotOptions,
   parseMainsSweepOptions,
   runCheck,
-  runMainsColdHot,
-  runMainsSweep,
-  sizePrechargeStateless,
   storedOutcome,
 } from '../services/engine';
+import { offload } from '../services/offload';
 
 export function computeRouter(ctx: AppContext): Router {
   const router = Router();
@@ -35,19 +33,19 @@ export function computeRouter(ctx: AppContext): Router {
 
   router.post('/precharge/size', requireRole(...ALL_ROLES), async (req, res) => {
     const body = prechargeSizeRequestSchema.parse(req.body);
-    res.json(sizePrechargeStateless(body, await teamPolicyOverrides(ctx, currentTeam(req).id)));
+    res.json(await offload('sizePrechargeStateless', body, await teamPolicyOverrides(ctx, currentTeam(req).id)));
   });
 
   // Mains power-up screens (issue 9): the switch-on angle sweep and the NTC cold/hot comparison.
-  router.post('/mains/sweep', requireRole(...ALL_ROLES), (req, res) => {
+  router.post('/mains/sweep', requireRole(...ALL_ROLES), async (req, res) => {
     const body = mainsRequestSchema.parse(req.body);
-    res.json(runMainsSweep(body.design, parseMainsSweepOptions(body.options)));
+    res.json(await offload('runMainsSweep', body.design, parseMainsSweepOptions(body.options)));
   });
 
   router.post('/mains/cold-hot', requireRole(...ALL_ROLES), async (req, res) => {
     const body = mainsRequestSchema.parse(req.body);
     const options = parseMainsColdHotOptions(body.options);
-    res.json(runMainsColdHot(body.design, options, await teamPolicyOverrides(ctx, currentTeam(req).id)));
+    res.json(await offload('runMainsColdHot', body.design, options, await teamPolicyOverrides(ctx, currentTeam(req).id)));
   });
 
   return router;

@@ -10,7 +10,7 @@ export function healthRouter(database: DatabaseHandle, startedAt: number): Route
       status: ok ? 'ok' : 'degraded',
       version: APP_VERSION,
       database: ok ? 'ok' : 'unavailable',
-      databaseKind: database.dataDir ? 'pglite-disk' : 'pglite-memory',
+      databaseKind: database.kind === 'server' ? 'postgresql-server' : database.dataDir ? 'pglite-disk' : 'pglite-memory',
       uptimeSeconds: Math.round((Date.now() - startedAt) / 100) / 10,
     });
   });

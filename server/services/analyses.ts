@@ -3,7 +3,7 @@
 // unavailable and answer 422 analysis_unavailable; a later version slots them in here.
 import { and, eq } from 'drizzle-orm';
 import { z } from 'zod';
-import { analysisRuns, type AnalysisRunRow, type RevisionRow } from '../../db/schema';
+import { analysisRuns, revisions, type AnalysisJobRow, type AnalysisRunRow, type RevisionRow } from '../../db/schema';
 import type { AnalysisKind, AnalysisRun } from '../../lib/contracts/designs';
 import type { AppContext } from '../context';
 import { HttpError } from '../errors';
@@ -14,13 +14,8 @@ import {
   mainsColdHotOptionsSchema,
   mainsSweepOptionsSchema,
   prepareSpreadForDesign,
-  runMainsColdHot,
-  runMainsSweep,
   runCheck,
-  runSnubber,
   runSpreadJob,
-  runStability,
-  sizePrechargeForDesign,
   snubberOptionsSchema,
   spreadOptionsSchema,
   stabilityOptionsSchema,
@@ -28,12 +23,14 @@ import {
   type SpreadRequest,
   type StoredPolicy,
 } from './engine';
-import { enqueueJob, type JobHooks, type JobView } from './jobs';
+import { offload } from './offload';
+import { cancelJob, enqueueJob, findJob, type JobHooks, type JobRunner } from './jobs';
 import { iso } from './shape';
 
 interface AvailableAnalysis {
   available: true;
   options: z.ZodType<Record<string, unknown>>;
+  /** Slow kinds run on the engine pool (offload.ts) and return a promise. */
   run(revision: RevisionRow, options: Record<string, unknown>): unknown;
 }
 /** Runs in the background (jobs.ts): validated and sized at once, run later. */
@@ -75,7 +72,7 @@ export const analysisRegistry: Record<AnalysisKind, AvailableAnalysis | Backgrou
     // The engine's sizing schema validates these (with the revision's design added).
     options: z.record(z.string(), z.unknown()),
     run: (revision, options) =>
-      sizePrechargeForDesign(JSON.parse(revision.designJson), options, (revision.policy as StoredPolicy).team),
+      offload('sizePrechargeForDesign', JSON.parse(revision.designJson), options, (revision.policy as StoredPolicy).team),
   },
   spread: {
     available: true,
@@ -102,24 +99,24 @@ export const analysisRegistry: Record<AnalysisKind, AvailableAnalysis | Backgrou
   stability: {
     available: true,
     options: stabilityOptionsSchema,
-    run: (revision, options) => runStability(JSON.parse(revision.designJson), options),
+    run: (revision, options) => offload('runStability', JSON.parse(revision.designJson), options),
   },
   snubber: {
     available: true,
     options: snubberOptionsSchema,
     run: (revision, options) =>
-      runSnubber(JSON.parse(revision.designJson), options as never, (revision.policy as StoredPolicy).team),
+      offload('runSnubber', JSON.parse(revision.designJson), options as never, (revision.policy as StoredPolicy).team),
   },
   'mains-sweep': {
     available: true,
     options: mainsSweepOptionsSchema,
-    run: (revision, options) => runMainsSweep(JSON.parse(revision.designJson), options),
+    run: (revision, options) => offload('runMainsSweep', JSON.parse(revision.designJson), options),
   },
   'mains-cold-hot': {
     available: true,
     options: mainsColdHotOptionsSchema,
     run: (revision, options) =>
-      runMainsColdHot(JSON.parse(revision.designJson), options, (revision.policy as StoredPolicy).team),
+      offload('runMainsColdHot', JSON.parse(revision.designJson), options, (revision.policy as StoredPolicy).team),
   },
 };
 
@@ -167,21 +164,23 @@ export async function runAnalysis(
   if (cached) return shapeRun(cached, true);
 
   if ('background' in entry) {
+    // Validated and sized now (bad options answer 400 at once); run by whichever worker takes it.
     const prepared = entry.prepare(revision, options);
-    const job = enqueueJob({
+    const job = await enqueueJob(ctx.database, {
       teamId: revision.teamId,
       revisionId: revision.id,
       kind,
+      options,
       optionsHash,
       total: prepared.total,
-      run: prepared.run,
-      finish: (value, durationMs) => storeRun(ctx, revision, kind, options, optionsHash, value, durationMs, userId, audit),
+      requestedBy: userId,
+      audit: { ...audit },
     });
-    return { job };
+    return { job: await shapeJob(ctx, job) };
   }
 
   const started = Date.now();
-  const result = entry.run(revision, options);
+  const result = await entry.run(revision, options);
   return storeRun(ctx, revision, kind, options, optionsHash, result, Date.now() - started, userId, audit);
 }
 
@@ -193,7 +192,7 @@ async function storeRun(
   optionsHash: string,
   result: unknown,
   durationMs: number,
-  userId: string,
+  userId: string | null,
   audit: Pick<AuditEntry, 'actor' | 'ip'>,
 ): Promise<AnalysisRun> {
   const row = await ctx.db.transaction(async (tx) => {
@@ -229,4 +228,75 @@ async function storeRun(
     .from(analysisRuns)
     .where(and(eq(analysisRuns.revisionId, revision.id), eq(analysisRuns.kind, kind), eq(analysisRuns.optionsHash, optionsHash)));
   return shapeRun(existing, true);
+}
+
+/** A background job as the API shows it: progress, and the stored run once it is done. */
+export interface JobView {
+  id: string;
+  revisionId: string;
+  kind: string;
+  state: AnalysisJobRow['state'];
+  done: number;
+  total: number;
+  createdAt: string;
+  result?: AnalysisRun;
+  error?: { message: string; fields?: unknown };
+}
+
+async function shapeJob(ctx: AppContext, job: AnalysisJobRow): Promise<JobView> {
+  let result: AnalysisRun | undefined;
+  if (job.state === 'done' && job.runId) {
+    const [run] = await ctx.db.select().from(analysisRuns).where(eq(analysisRuns.id, job.runId));
+    if (run) result = shapeRun(run, false);
+  }
+  return {
+    id: job.id,
+    revisionId: job.revisionId,
+    kind: job.kind,
+    state: job.state,
+    done: job.done,
+    total: job.total,
+    createdAt: iso(job.createdAt),
+    ...(result ? { result } : {}),
+    ...(job.error ? { error: job.error as JobView['error'] } : {}),
+  };
+}
+
+export async function getJobView(ctx: AppContext, teamId: string, id: string): Promise<JobView | null> {
+  const job = await findJob(ctx.database, teamId, id);
+  return job ? shapeJob(ctx, job) : null;
+}
+
+export async function cancelJobView(ctx: AppContext, teamId: string, id: string): Promise<JobView | null> {
+  const job = await cancelJob(ctx.database, teamId, id);
+  return job ? shapeJob(ctx, job) : null;
+}
+
+/** What a worker does with a claimed job: the registry entry's run, then the result stored once. */
+export function analysisJobRunner(ctx: AppContext): JobRunner {
+  return async (job, hooks: JobHooks) => {
+    const entry = analysisRegistry[job.kind];
+    if (!entry.available || !('background' in entry)) throw new Error(`analysis kind ${job.kind} does not run in the background`);
+    const [revision] = await ctx.db
+      .select()
+      .from(revisions)
+      .where(and(eq(revisions.id, job.revisionId), eq(revisions.teamId, job.teamId)));
+    if (!revision) throw new Error(`revision ${job.revisionId} not found`);
+    const options = job.options as Record<string, unknown>;
+    const started = Date.now();
+    const outcome = await entry.prepare(revision, options).run(hooks);
+    if (outcome.cancelled) return { cancelled: true };
+    const run = await storeRun(
+      ctx,
+      revision,
+      job.kind,
+      options,
+      job.optionsHash,
+      outcome.value,
+      Date.now() - started,
+      job.requestedBy,
+      job.audit as Pick<AuditEntry, 'actor' | 'ip'>,
+    );
+    return { cancelled: false, runId: run.id };
+  };
 }

@@ -55,7 +55,33 @@ async function storeFile(dir: string, sha256: string, bytes: Buffer): Promise<bo
     await handle.close();
   }
   await fs.promises.rename(temp, target);
+  // The rename itself is durable only once the directory entry is on disk.
+  const dirHandle = await fs.promises.open(dir, 'r');
+  try {
+    await dirHandle.sync();
+  } finally {
+    await dirHandle.close();
+  }
   return true;
+}
+
+/**
+ * Removes temp files that a process killed mid-upload left behind (`.<sha>.<random>.tmp`), older
+ * than `olderThanMs` so that an upload in flight on another instance sharing the folder is spared.
+ * Run at start; returns the names removed.
+ */
+export async function sweepStaleUploads(dir: string, olderThanMs = 60 * 60 * 1000, now = Date.now()): Promise<string[]> {
+  if (!fs.existsSync(dir)) return [];
+  const removed: string[] = [];
+  for (const name of await fs.promises.readdir(dir)) {
+    if (!/^\.[0-9a-f]{64}\.[0-9a-f]{12}\.tmp$/.test(name)) continue;
+    const file = path.join(dir, name);
+    const stat = await fs.promises.stat(file).catch(() => null);
+    if (!stat || now - stat.mtimeMs < olderThanMs) continue;
+    await fs.promises.rm(file, { force: true });
+    removed.push(name);
+  }
+  return removed;
 }
 
 export async function createCapture(ctx: AppContext, teamId: string, designId: string, userId: string, input: NewCapture) {

@@ -3,6 +3,7 @@
 //
 // Everything returned is JSON-safe (what would be stored is what is compared): NaN and ±Infinity
 // become null, undefined members go, exactly as JSON.stringify writes them.
+import { availableParallelism } from 'node:os';
 import {
   ENGINE_VERSION,
   formatEng as engineFormatEng,
@@ -383,8 +384,9 @@ export function prepareSpreadForDesign(
   request: SpreadRequest,
   teamOverrides: unknown,
   fieldPrefix = 'options',
-): { design: Design; tolerances: TolerancesInput; policy: DeratingPolicy; total: number } {
-  const design = requireValidDesign(designInput, 'design');
+): { design: Design | MainsDesign; tolerances: TolerancesInput; policy: DeratingPolicy; total: number } {
+  // A mains design spreads through the mains engine (sim/spread runs both), not its DC stand-in.
+  const design = isMainsDesign(designInput) ? requireValidMainsDesign(designInput, 'design') : requireValidDesign(designInput, 'design');
   const policy = guarded(fieldPrefix, () => resolvePolicy(teamOverrides ?? undefined, design.derating));
   const prepared = guarded(fieldPrefix, () =>
     prepareSpread(design, tolerances as TolerancesInput, { ...request, policy }),
@@ -394,17 +396,26 @@ export function prepareSpreadForDesign(
 
 /** Runs the spread over worker threads (the event loop stays free). JSON-safe result. */
 export async function runSpreadJob(
-  prepared: { design: Design; tolerances: TolerancesInput; policy: DeratingPolicy },
+  prepared: { design: Design | MainsDesign; tolerances: TolerancesInput; policy: DeratingPolicy },
   request: SpreadRequest,
   hooks: { onProgress: (done: number, total: number) => void; signal: AbortSignal },
 ): Promise<SpreadResult> {
   const result = await runSpreadParallel(prepared.design, prepared.tolerances, {
     ...request,
+    // Leave a core to the API thread, so the server keeps answering while a spread runs.
+    workers: spreadThreads(),
     policy: prepared.policy,
     onProgress: hooks.onProgress,
     signal: hooks.signal,
   });
   return jsonSafe(result);
+}
+
+/** Spread threads in the server: SPREAD_THREADS, else one per core but one (at least one). */
+export function spreadThreads(env: NodeJS.ProcessEnv = process.env): number {
+  const given = Number(env.SPREAD_THREADS);
+  if (Number.isInteger(given) && given >= 1) return given;
+  return Math.max(1, availableParallelism() - 1);
 }
 
 export const closeEngineWorkers = (): Promise<void> => closeSpreadWorkers();

@@ -19,6 +19,9 @@ import { designSchema, safeParseDesign, type Design, type DesignInput, type Rati
 import { DesignError, type DesignIssue } from '../errors';
 import { formatEng, parseQuantity, type Dimension } from '../units';
 import { ntcResistance } from './ntc';
+import { NUMBER, parseTemperature } from './temperature';
+
+export { parseTemperature };
 
 export type MainsKind = 'single-phase' | 'three-phase';
 
@@ -83,24 +86,8 @@ function quantity(dimension: Dimension, bound: Bound = 'any') {
   );
 }
 
-const NUMBER = '[+-]?(?:\\d+\\.?\\d*|\\.\\d+)(?:[eE][+-]?\\d+)?';
-const KELVIN = new RegExp(`^\\s*(${NUMBER})\\s*K\\s*$`);
-const CELSIUS = new RegExp(`^\\s*(${NUMBER})\\s*(?:°\\s*C|℃|degC)\\s*$`);
-
-/**
- * A temperature in K: a number (K), "298.15 K", "25 °C". Kelvin and Celsius are read here (Celsius
- * also to spare a browser mathjs's first-use load); anything else ("77 degF") goes to parseQuantity.
- */
-export function parseTemperature(input: number | string, field?: string): number {
-  if (typeof input === 'string') {
-    const kelvin = KELVIN.exec(input);
-    if (kelvin) return Number(kelvin[1]);
-    const celsius = CELSIUS.exec(input);
-    if (celsius) return Number(celsius[1]) + 273.15;
-  }
-  return parseQuantity(input, 'temperature', field);
-}
-
+// The temperature reader lives in its own module so that sim/spread/tolerances.ts (which sim/design.ts
+// imports) can use it without importing this schema, which imports sim/design.ts.
 function temperature() {
   return read(parseTemperature, (value) =>
     value >= TEMPERATURE_RANGE[0] && value <= TEMPERATURE_RANGE[1]
@@ -213,6 +200,8 @@ const mainsDesignShape = {
   points: dc.points,
   ratings: dc.ratings,
   derating: dc.derating,
+  /** Tolerances for the spread, as in a DC design file (mains paths such as mains.voltage). */
+  tolerances: dc.tolerances,
 };
 
 /** The mains design file as written. */
@@ -285,6 +274,8 @@ export interface MainsDesign {
   points: number;
   ratings: Partial<Record<RatingKey, number>>;
   derating: Partial<Record<RatingKey, number>>;
+  /** The design file's tolerances for the spread, parsed (SI); absent when it has none. */
+  tolerances?: Design['tolerances'];
 }
 
 function editDistance(a: string, b: string): number {
@@ -493,6 +484,7 @@ export function safeParseMainsDesign(input: unknown): SafeParse {
       points: d.points,
       ratings: d.ratings,
       derating: d.derating,
+      ...(parsed.tolerances ? { tolerances: parsed.tolerances } : {}),
     },
   };
 }

@@ -59,7 +59,8 @@ export function unescapeCell(cell: string): string {
 function write(rows: string[][], bom: boolean): string {
   const body = Papa.unparse(
     rows.map((row) => row.map(escapeCell)),
-    { newline: '\r\n', quotes: false, escapeFormulae: false },
+    // A cell with ";" is quoted as well: spreadsheets whose list separator is ";" would split it there.
+    { newline: '\r\n', quotes: (value: unknown) => typeof value === 'string' && value.includes(';'), escapeFormulae: false },
   );
   return `${bom ? '\uFEFF' : ''}${body}\r\n`;
 }

@@ -1,7 +1,8 @@
 /**
  * Running samples: each sample's design through the closed form where it applies (a series RLC
  * with a step source, a few µs) and through the engine's `simulate` otherwise, then the rating
- * checks. Results go into flat typed arrays (metric-major), which a worker can hand back without
+ * checks; a mains design through the mains engine at its worst switch-on angle (mainsSample.ts),
+ * then the mains checks. Results go into flat typed arrays (metric-major), which a worker can hand back without
  * copying and which merge by index, so the summary does not depend on who ran which sample.
  */
 import type { Design } from '../design';
@@ -10,9 +11,11 @@ import type { Metrics } from '../metrics';
 import { evaluateChecks, type Check, type CheckStatus, type DeratingPolicy } from '../ratings';
 import { simulate } from '../simulate';
 import { closedFormMetrics } from '../solvers/closedForm';
+import type { MainsDesign } from '../mains/schema';
 import { fastChecks, type CheckOutcome } from './checkValues';
-import { SPREAD_METRICS } from './metricList';
-import { cloneDesign } from './paths';
+import { spreadMetricsFor, type MainsSampleMetrics, type SpreadSubject } from './metricList';
+import { evaluateMainsDesign, type MainsAngleRule } from './mainsSample';
+import { cloneDesign, isMainsSpreadDesign, type SpreadDesign } from './paths';
 import { applySample, drawSample, type SamplePlan } from './sampling';
 
 export type SampleSolver = 'closed-form' | 'engine';
@@ -38,7 +41,8 @@ export const ENGINE_OPTIONS = { points: 2, crossCheck: false, tolerance: 1e-8 } 
 const INVALID_MESSAGES = 20;
 
 export interface DesignEvaluation {
-  metrics: Metrics;
+  /** The engine's metrics, or for a mains design the mains engine's with the switch-on angle. */
+  metrics: Metrics | MainsSampleMetrics;
   checks: Check[];
   solver: SampleSolver;
 }
@@ -51,8 +55,15 @@ export function sampleMetrics(design: Design): { metrics: Metrics; solver: Sampl
     : { metrics: simulate(design, ENGINE_OPTIONS).metrics, solver: 'engine' };
 }
 
-/** Metrics and the full rating checks (with their messages) of one design. */
-export function evaluateDesign(design: Design, policy: DeratingPolicy): DesignEvaluation {
+/**
+ * Metrics and the full rating checks (with their messages) of one design. A mains design needs the
+ * angle rule (which switch-on angle it runs at); its samples count as 'engine' (the mains engine).
+ */
+export function evaluateDesign(design: SpreadDesign, policy: DeratingPolicy, angle?: MainsAngleRule | null): DesignEvaluation {
+  if (isMainsSpreadDesign(design)) {
+    if (!angle) throw new Error('a mains design needs its switch-on angle rule');
+    return { ...evaluateMainsDesign(design, angle, policy), solver: 'engine' };
+  }
   const { metrics, solver } = sampleMetrics(design);
   return { metrics, checks: evaluateChecks(design, metrics, policy), solver };
 }
@@ -78,10 +89,14 @@ export interface EvaluationContext {
   template: Check[];
   /** Read checks with fastChecks (verified against evaluateChecks before the run) or run evaluateChecks. */
   fastChecks: boolean;
+  /** Which engine: 'dc' (sim/simulate) or 'mains' (sim/mains). */
+  subject: SpreadSubject;
+  /** Mains designs: how each sample's switch-on angle is chosen (null for DC). */
+  mainsAngle: MainsAngleRule | null;
 }
 
 export function emptyBlock(ctx: EvaluationContext, from: number, count: number): SampleBlock {
-  const nM = SPREAD_METRICS.length;
+  const nM = spreadMetricsFor(ctx.subject).length;
   const nC = ctx.checkIds.length;
   return {
     from,
@@ -96,7 +111,7 @@ export function emptyBlock(ctx: EvaluationContext, from: number, count: number):
 }
 
 /** The design of sample k (a fresh copy). */
-export function sampleDesign(plan: SamplePlan, k: number): Design {
+export function sampleDesign(plan: SamplePlan, k: number): SpreadDesign {
   const values = new Float64Array(plan.parameters.length);
   drawSample(plan, k, values);
   return applySample(plan, values, cloneDesign(plan.design));
@@ -119,18 +134,23 @@ export function evaluateRange(ctx: EvaluationContext, from: number, to: number, 
   const { plan, policy, checkIds } = ctx;
   const count = to - from;
   const block = emptyBlock(ctx, from, count);
-  const nM = SPREAD_METRICS.length;
+  const metricList = spreadMetricsFor(ctx.subject);
+  const nM = metricList.length;
   const columnOf = new Map(checkIds.map((id, c) => [id, c]));
   const values = new Float64Array(plan.parameters.length);
   for (let j = 0; j < count; j++) {
     const k = from + j;
     drawSample(plan, k, values);
     const design = applySample(plan, values, cloneDesign(plan.design));
-    let result: { metrics: Metrics; solver: SampleSolver; checks: CheckOutcome[] };
+    let result: { metrics: Metrics | MainsSampleMetrics; solver: SampleSolver; checks: CheckOutcome[] };
     try {
-      const { metrics, solver } = sampleMetrics(design);
-      const checks = ctx.fastChecks ? fastChecks(design, metrics, policy, ctx.template) : evaluateChecks(design, metrics, policy);
-      result = { metrics, solver, checks };
+      if (isMainsSpreadDesign(design)) {
+        result = evaluateDesign(design as MainsDesign, policy, ctx.mainsAngle);
+      } else {
+        const { metrics, solver } = sampleMetrics(design);
+        const checks = ctx.fastChecks ? fastChecks(design, metrics, policy, ctx.template) : evaluateChecks(design, metrics, policy);
+        result = { metrics, solver, checks };
+      }
     } catch (error) {
       if (!(error instanceof DesignError)) throw error;
       block.solver[j] = SOLVER_INVALID;
@@ -141,7 +161,7 @@ export function evaluateRange(ctx: EvaluationContext, from: number, to: number, 
     }
     block.solver[j] = result.solver === 'closed-form' ? SOLVER_CLOSED_FORM : SOLVER_ENGINE;
     for (let m = 0; m < nM; m++) {
-      const x = SPREAD_METRICS[m].read(result.metrics);
+      const x = metricList[m].read(result.metrics);
       block.metrics[m * count + j] = x === null || !Number.isFinite(x) ? NaN : x;
     }
     for (let c = 0; c < checkIds.length; c++) block.checkStatus[c * count + j] = STATUS_INDEX['not-checked'];

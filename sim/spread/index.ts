@@ -12,7 +12,18 @@ export {
   type Tolerances,
   type TolerancesInput,
 } from './tolerances';
-export { PATH_INFO, TOLERANCE_PATHS, type TolerancePath } from './paths';
+export {
+  DC_TOLERANCE_PATHS,
+  MAINS_ONLY_PATHS,
+  MAINS_SHARED_PATHS,
+  PATH_INFO,
+  TOLERANCE_PATHS,
+  isMainsSpreadDesign,
+  tolerancePathsFor,
+  type SpreadDesign,
+  type TolerancePath,
+} from './paths';
+export { MAINS_ANGLE_SWEEP, type MainsAngleRule } from './mainsSample';
 export {
   DEFAULT_SAMPLES,
   MAX_CORNER_PARAMETERS,
@@ -22,10 +33,21 @@ export {
   type SpreadMethod,
 } from './sampling';
 export { DEFAULT_SEED, PRNG_NAME } from './random';
-export { HISTOGRAM_BINS, HISTOGRAM_METRICS, SPREAD_METRICS, type SpreadMetricKey } from './metricList';
-export { toDesignInput } from './designInput';
+export {
+  HISTOGRAM_BINS,
+  HISTOGRAM_METRICS,
+  MAINS_HISTOGRAM_METRICS,
+  MAINS_SPREAD_METRICS,
+  SPREAD_METRICS,
+  spreadMetricsFor,
+  type MainsSampleMetrics,
+  type SpreadMetricKey,
+  type SpreadSubject,
+} from './metricList';
+export { toDesignInput, toMainsDesignInput } from './designInput';
 export type {
   CheckSpread,
+  MainsSpreadInfo,
   MetricSpread,
   SpreadCancelled,
   SpreadCombination,

@@ -20,9 +20,9 @@ import { availableParallelism } from 'node:os';
 import path from 'node:path';
 import { Worker } from 'node:worker_threads';
 
-import type { Design } from '../design';
 import { DesignError } from '../errors';
 import { emptyBlock, mergeBlock, type SampleBlock } from './evaluate';
+import type { SpreadDesign } from './paths';
 import { prepareSpread, progressStep, type SpreadOptions } from './run';
 import { summariseSpread, type SpreadResult } from './summary';
 import type { Tolerances, TolerancesInput } from './tolerances';
@@ -80,7 +80,7 @@ export async function closeSpreadWorkers(): Promise<void> {
 }
 
 export async function runSpreadParallel(
-  design: Design,
+  design: SpreadDesign,
   tolerances: Tolerances | TolerancesInput,
   options: ParallelSpreadOptions,
 ): Promise<SpreadResult> {

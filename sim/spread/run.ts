@@ -6,6 +6,7 @@
  * and the summary, and gives the identical result for the same seed.
  */
 import type { Design } from '../design';
+import type { Metrics } from '../metrics';
 import { DesignError } from '../errors';
 import { evaluateChecks, resolvePolicy, type DeratingPolicy } from '../ratings';
 import { fastChecksAgree } from './checkValues';
@@ -18,6 +19,8 @@ import {
   sampleMetrics,
   type EvaluationContext,
 } from './evaluate';
+import { worstSwitchOnAngle, type MainsAngleRule } from './mainsSample';
+import { isMainsSpreadDesign, type SpreadDesign } from './paths';
 import { DEFAULT_SEED } from './random';
 import { MAX_CORNER_PARAMETERS, samplesFor, type SamplePlan, type SpreadDistribution, type SpreadMethod } from './sampling';
 import { summariseSpread, type SpreadComplete, type SpreadResult } from './summary';
@@ -42,8 +45,12 @@ export interface PreparedSpread {
   nominal: SpreadComplete['nominal'];
 }
 
-/** Validates the options and tolerances, and runs the nominal design (which must run). */
-export function prepareSpread(design: Design, tolerances: Tolerances | TolerancesInput, options: SpreadOptions): PreparedSpread {
+/**
+ * Validates the options and tolerances, and runs the nominal design (which must run). A mains design
+ * (sim/mains) runs at its worst switch-on angle, searched here; corners search it again for every
+ * corner, Monte Carlo keeps it (mainsSample.ts, README "Mains designs").
+ */
+export function prepareSpread(design: SpreadDesign, tolerances: Tolerances | TolerancesInput, options: SpreadOptions): PreparedSpread {
   if (options.method !== 'corners' && options.method !== 'monte-carlo') {
     throw new DesignError('must be "corners" or "monte-carlo"', 'method');
   }
@@ -64,10 +71,36 @@ export function prepareSpread(design: Design, tolerances: Tolerances | Tolerance
   const total = samplesFor(options.method, parameters.length, options.samples);
   const plan: SamplePlan = { design, parameters, method: options.method, distribution, seed, total };
   const policy = options.policy ?? resolvePolicy(undefined, design.derating);
+  if (isMainsSpreadDesign(design)) {
+    const worst = worstSwitchOnAngle(design);
+    const mainsAngle: MainsAngleRule = { mode: options.method === 'corners' ? 'search' : 'fixed', angle: worst.angle };
+    const nominal = evaluateDesign(design, policy, { mode: 'fixed', angle: worst.angle });
+    return {
+      ctx: {
+        plan,
+        policy,
+        checkIds: nominal.checks.map((c) => c.id),
+        template: nominal.checks,
+        // The fast readers follow evaluateChecks on a DC design; the mains checks are mainsChecks.
+        fastChecks: false,
+        subject: 'mains',
+        mainsAngle,
+      },
+      nominal,
+    };
+  }
   const nominal = evaluateDesign(design, policy);
   const fast = fastChecksHold(plan, policy, nominal);
   return {
-    ctx: { plan, policy, checkIds: nominal.checks.map((c) => c.id), template: nominal.checks, fastChecks: fast },
+    ctx: {
+      plan,
+      policy,
+      checkIds: nominal.checks.map((c) => c.id),
+      template: nominal.checks,
+      fastChecks: fast,
+      subject: 'dc',
+      mainsAngle: null,
+    },
     nominal,
   };
 }
@@ -80,9 +113,9 @@ const FAST_CHECK_PROBES = 16;
  * design and on the run's first samples; if not, the run uses evaluateChecks throughout.
  */
 function fastChecksHold(plan: SamplePlan, policy: DeratingPolicy, nominal: PreparedSpread['nominal']): boolean {
-  if (!fastChecksAgree(plan.design, nominal.metrics, policy, nominal.checks, nominal.checks)) return false;
+  if (!fastChecksAgree(plan.design as Design, nominal.metrics as Metrics, policy, nominal.checks, nominal.checks)) return false;
   for (let k = 0; k < Math.min(plan.total, FAST_CHECK_PROBES); k++) {
-    const design = sampleDesign(plan, k);
+    const design = sampleDesign(plan, k) as Design;
     let metrics;
     try {
       metrics = sampleMetrics(design).metrics;
@@ -112,7 +145,7 @@ export function yieldToEventLoop(): Promise<void> {
 }
 
 export async function runSpread(
-  design: Design,
+  design: SpreadDesign,
   tolerances: Tolerances | TolerancesInput,
   options: SpreadOptions,
 ): Promise<SpreadResult> {

@@ -3,9 +3,8 @@
  * 2ⁿ extreme combinations by the bits of k (bit j set: parameter j at its maximum), Monte Carlo
  * draws from the band with the sample's own random stream (see random.ts).
  */
-import type { Design } from '../design';
 import { DesignError } from '../errors';
-import { PATH_INFO } from './paths';
+import { PATH_INFO, type SpreadDesign } from './paths';
 import { sampleStream, truncatedNormal } from './random';
 import type { SpreadParameter } from './tolerances';
 
@@ -20,7 +19,8 @@ export const NORMAL_SIGMAS = 3;
 
 /** Everything needed to draw and run any sample: plain data, so it can be posted to a worker. */
 export interface SamplePlan {
-  design: Design;
+  /** The nominal design: the engine's `Design`, or a `MainsDesign` (sim/mains). */
+  design: SpreadDesign;
   parameters: SpreadParameter[];
   method: SpreadMethod;
   distribution: SpreadDistribution;
@@ -61,7 +61,7 @@ export function drawSample(plan: SamplePlan, k: number, values: Float64Array): v
 }
 
 /** The design of one sample: the nominal design with the sample's values written in. */
-export function applySample(plan: SamplePlan, values: ArrayLike<number>, into: Design): Design {
+export function applySample<D extends SpreadDesign>(plan: SamplePlan, values: ArrayLike<number>, into: D): D {
   for (let j = 0; j < plan.parameters.length; j++) PATH_INFO[plan.parameters[j].path].set(into, values[j]);
   return into;
 }

@@ -4,10 +4,11 @@
  * the whole design, so the app can open that corner as a design), and histograms for the app.
  * A pure function of the columns, so serial and parallel runs summarise identically.
  */
-import type { DesignInput } from '../design';
+import type { Design, DesignInput } from '../design';
+import type { MainsDesign, MainsDesignInput } from '../mains/schema';
 import type { Metrics } from '../metrics';
 import type { Check, CheckStatus } from '../ratings';
-import { toDesignInput } from './designInput';
+import { toDesignInput, toMainsDesignInput } from './designInput';
 import {
   SOLVER_CLOSED_FORM,
   SOLVER_ENGINE,
@@ -20,7 +21,15 @@ import {
   type SampleBlock,
   type SampleSolver,
 } from './evaluate';
-import { HISTOGRAM_BINS, HISTOGRAM_METRICS, SPREAD_METRICS, type SpreadMetricKey } from './metricList';
+import {
+  HISTOGRAM_BINS,
+  histogramMetricsFor,
+  spreadMetricsFor,
+  type MainsSampleMetrics,
+  type SpreadMetricKey,
+  type SpreadSubject,
+} from './metricList';
+import { MAINS_ANGLE_SWEEP, mainsSampleMetrics, worstSwitchOnAngle, type MainsAngleRule } from './mainsSample';
 import { PRNG_NAME } from './random';
 import type { SpreadDistribution, SpreadMethod } from './sampling';
 import { histogramBins, summariseColumn, type HistogramBin } from './statistics';
@@ -32,8 +41,32 @@ export interface SpreadCombination {
   sample: number;
   /** The toleranced values, SI, by design path. */
   values: Record<string, number>;
-  /** The nominal design with these values: open it as a design. */
-  design: DesignInput;
+  /** The nominal design with these values: open it as a design (a mains design at the switch-on angle the sample ran at). */
+  design: DesignInput | MainsDesignInput;
+}
+
+/** What a mains spread adds: how the switch-on angle was chosen, and how far that choice was checked. */
+export interface MainsSpreadInfo {
+  /** 'search': every sample at its own worst angle (corners); 'fixed': every sample at the nominal's worst angle (Monte Carlo). */
+  angleMode: MainsAngleRule['mode'];
+  /** The nominal design's worst switch-on angle, degrees (the design file's own angle is `designAngle`). */
+  nominalAngle: number;
+  designAngle: number;
+  /** The sweep each search runs, degrees (refined to 0.01° around the worst point). */
+  sweep: { from: number; to: number; step: number };
+  /**
+   * Monte Carlo only: the samples with the largest inrush and the worst margin, searched again for
+   * their own worst angle. `differencePercent` is how much more peak current the searched angle
+   * gives (≥ 0 up to the refinement's tolerance): the error of holding the nominal's angle.
+   */
+  angleCheck: {
+    sample: number;
+    usedAngle: number;
+    searchedAngle: number;
+    peakCurrentAtUsed: number;
+    peakCurrentAtSearched: number;
+    differencePercent: number;
+  }[];
 }
 
 export interface MetricSpread {
@@ -85,6 +118,10 @@ export interface SpreadHistogram {
 
 export interface SpreadComplete {
   status: 'complete';
+  /** Which engine ran the samples: the DC engine or the mains engine (a design with a mains section). */
+  subject: SpreadSubject;
+  /** Mains designs only (null for DC). */
+  mains: MainsSpreadInfo | null;
   method: SpreadMethod;
   /** Monte Carlo only (null for corners). */
   distribution: SpreadDistribution | null;
@@ -101,7 +138,7 @@ export interface SpreadComplete {
     /** 'fast': per-sample checks read without messages (checkValues.ts), verified against evaluateChecks; 'full': evaluateChecks per sample. */
     checks: 'fast' | 'full';
   };
-  nominal: { metrics: Metrics; checks: Check[]; solver: SampleSolver };
+  nominal: { metrics: Metrics | MainsSampleMetrics; checks: Check[]; solver: SampleSolver };
   metrics: MetricSpread[];
   checks: CheckSpread[];
   histograms: SpreadHistogram[];
@@ -135,11 +172,21 @@ const HISTOGRAM_CHECKS: Record<string, string[]> = {
   peakBusVoltage: ['switch-voltage'],
 };
 
+/** The same for a mains spread, whose checks read the rectifier's metrics (sim/mains/checks.ts). */
+const MAINS_HISTOGRAM_CHECKS: Record<string, string[]> = {
+  peakCapacitorVoltage: ['capacitor-voltage', 'capacitor-surge-voltage'],
+  peakCurrent: ['inductor-saturation'],
+  surgeEquivalentCurrent: ['diode-surge-current'],
+  i2t: ['fuse-i2t', 'cable-i2t'],
+  diodeI2t: ['diode-i2t'],
+  limiterEnergy: ['precharge-pulse-energy'],
+};
+
 const SEVERITY: Record<CheckStatus, number> = { pass: 0, 'not-checked': 1, warn: 2, fail: 3 };
 
 export interface SummaryInput {
   ctx: EvaluationContext;
-  nominal: { metrics: Metrics; checks: Check[]; solver: SampleSolver };
+  nominal: { metrics: Metrics | MainsSampleMetrics; checks: Check[]; solver: SampleSolver };
   columns: SampleBlock;
   run: { elapsedMs: number; workers: number };
 }
@@ -147,18 +194,30 @@ export interface SummaryInput {
 export function summariseSpread({ ctx, nominal, columns, run }: SummaryInput): SpreadComplete {
   const { plan } = ctx;
   const n = columns.count;
+  const metricList = spreadMetricsFor(ctx.subject);
+  const angleColumn = ctx.subject === 'mains' ? metricList.findIndex((info) => info.key === 'switchOnAngle') : -1;
+  /** The switch-on angle sample k ran at (mains), else undefined. */
+  const angleOf = (k: number): number | undefined => {
+    if (angleColumn < 0) return undefined;
+    const angle = columns.metrics[angleColumn * n + k];
+    return Number.isFinite(angle) ? angle : undefined;
+  };
+  const inputOf = (k: number): DesignInput | MainsDesignInput => {
+    const design = sampleDesign(plan, k);
+    return ctx.subject === 'mains' ? toMainsDesignInput(design as MainsDesign, angleOf(k)) : toDesignInput(design as Design);
+  };
   const combos = new Map<number, SpreadCombination>();
   const combination = (k: number): SpreadCombination => {
     let c = combos.get(k);
     if (!c) {
-      c = { sample: k, values: sampleValues(plan, k), design: toDesignInput(sampleDesign(plan, k)) };
+      c = { sample: k, values: sampleValues(plan, k), design: inputOf(k) };
       combos.set(k, c);
     }
     return c;
   };
 
-  const metricSummaries = SPREAD_METRICS.map((_, m) => summariseColumn(columns.metrics.subarray(m * n, (m + 1) * n)));
-  const metrics: MetricSpread[] = SPREAD_METRICS.map((info, m) => {
+  const metricSummaries = metricList.map((_, m) => summariseColumn(columns.metrics.subarray(m * n, (m + 1) * n)));
+  const metrics: MetricSpread[] = metricList.map((info, m) => {
     const s = metricSummaries[m];
     return {
       key: info.key,
@@ -222,17 +281,18 @@ export function summariseSpread({ ctx, nominal, columns, run }: SummaryInput): S
     return check;
   });
 
-  const histograms: SpreadHistogram[] = HISTOGRAM_METRICS.map((key) => {
-    const m = SPREAD_METRICS.findIndex((info) => info.key === key);
+  const histogramChecks = ctx.subject === 'mains' ? MAINS_HISTOGRAM_CHECKS : HISTOGRAM_CHECKS;
+  const histograms: SpreadHistogram[] = histogramMetricsFor(ctx.subject).map((key) => {
+    const m = metricList.findIndex((info) => info.key === key);
     const s = metricSummaries[m];
-    const ratings = (HISTOGRAM_CHECKS[key] ?? [])
+    const ratings = (histogramChecks[key] ?? [])
       .map((id) => nominalById.get(id))
       .filter((c): c is Check => !!c && c.limit !== null)
       .map((c) => ({ checkId: c.id, label: c.label, limit: c.limit!, deratedLimit: c.deratedLimit }));
     return {
       key,
-      label: SPREAD_METRICS[m].label,
-      unit: SPREAD_METRICS[m].unit,
+      label: metricList[m].label,
+      unit: metricList[m].unit,
       nominal: metrics[m].nominal,
       bins: histogramBins(s.values, s.min, s.max, HISTOGRAM_BINS),
       ratings,
@@ -264,6 +324,8 @@ export function summariseSpread({ ctx, nominal, columns, run }: SummaryInput): S
 
   return {
     status: 'complete',
+    subject: ctx.subject,
+    mains: ctx.subject === 'mains' ? mainsInfo(ctx, metrics, worstCase, angleOf) : null,
     method: plan.method,
     distribution: plan.method === 'monte-carlo' ? plan.distribution : null,
     seed: plan.method === 'monte-carlo' ? plan.seed : null,
@@ -285,6 +347,45 @@ export function summariseSpread({ ctx, nominal, columns, run }: SummaryInput): S
     worstStatus: checks.length ? worstStatus : invalid > 0 ? 'fail' : 'not-checked',
     invalid: { count: invalid, samples: columns.invalid.map((e) => ({ ...combination(e.index), message: e.message })) },
     run,
+  };
+}
+
+/**
+ * How the mains spread chose its angles; for Monte Carlo (every sample at the nominal's worst
+ * angle), the samples with the largest inrush and the worst margin searched again for their own.
+ */
+function mainsInfo(
+  ctx: EvaluationContext,
+  metrics: MetricSpread[],
+  worstCase: SpreadComplete['worstCase'],
+  angleOf: (k: number) => number | undefined,
+): MainsSpreadInfo {
+  const rule = ctx.mainsAngle!;
+  const angleCheck: MainsSpreadInfo['angleCheck'] = [];
+  if (rule.mode === 'fixed') {
+    const peak = metrics.find((m) => m.key === 'peakCurrent');
+    const samples = [...new Set([peak?.atMax?.sample, worstCase?.sample].filter((k): k is number => k !== undefined))];
+    for (const k of samples) {
+      const design = sampleDesign(ctx.plan, k) as MainsDesign;
+      const usedAngle = angleOf(k) ?? rule.angle;
+      const atUsed = mainsSampleMetrics(design, { mode: 'fixed', angle: usedAngle }).peakCurrent.value;
+      const searched = worstSwitchOnAngle(design);
+      angleCheck.push({
+        sample: k,
+        usedAngle,
+        searchedAngle: searched.angle,
+        peakCurrentAtUsed: atUsed,
+        peakCurrentAtSearched: searched.peakCurrent,
+        differencePercent: atUsed > 0 ? (100 * (searched.peakCurrent - atUsed)) / atUsed : 0,
+      });
+    }
+  }
+  return {
+    angleMode: rule.mode,
+    nominalAngle: rule.angle,
+    designAngle: (ctx.plan.design as MainsDesign).mains.angle,
+    sweep: { ...MAINS_ANGLE_SWEEP },
+    angleCheck,
   };
 }
 

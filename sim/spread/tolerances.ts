@@ -15,10 +15,19 @@
  */
 import { z } from 'zod';
 
-import type { Design } from '../design';
 import { DesignError, type DesignIssue } from '../errors';
+import { parseTemperature } from '../mains/temperature';
 import { formatEng, parseQuantity, type Dimension } from '../units';
-import { PATH_INFO, TOLERANCE_PATHS, isTolerancePath, unitOfPath, type TolerancePath } from './paths';
+import {
+  PATH_INFO,
+  TOLERANCE_PATHS,
+  isMainsSpreadDesign,
+  isTolerancePath,
+  pathAppliesTo,
+  unitOfPath,
+  type SpreadDesign,
+  type TolerancePath,
+} from './paths';
 
 export interface PercentTolerance {
   percent: number;
@@ -65,7 +74,8 @@ function readBound(path: TolerancePath, value: unknown): { value: number; dimens
   let firstError = '';
   for (const candidate of candidates) {
     try {
-      const parsed = parseQuantity(value, candidate);
+      // The engine's parseQuantity reads a trailing "K" as kilo; temperatures go through the mains reader.
+      const parsed = candidate === 'temperature' ? parseTemperature(value) : parseQuantity(value, candidate);
       const bare = typeof value === 'number' || /^[\s\d.eE+-]*$/.test(value);
       return { value: parsed, dimension: dimension === 'load' && !bare ? candidate : null };
     } catch (error) {
@@ -176,7 +186,7 @@ function unknownPathMessage(path: string): string {
   const leaf = path.split('.').pop() ?? path;
   const near = TOLERANCE_PATHS.filter((p) => p.endsWith(`.${leaf}`) || p.startsWith(`${path.split('.')[0]}.`));
   const hint = near.length ? ` (known here: ${near.join(', ')})` : '';
-  return `unknown design path "${path}": a tolerance goes on a component value or the source voltage${hint}`;
+  return `unknown design path "${path}": a tolerance goes on a component value, the source voltage or a mains value${hint}`;
 }
 
 /**
@@ -214,7 +224,7 @@ const LOAD_KIND_DIMENSION = { resistance: 'resistance', current: 'current', powe
  * tolerance sits on a nominal 0 (it would not spread), or a load band is in the wrong unit.
  */
 export function resolveTolerances(
-  design: Design,
+  design: SpreadDesign,
   tolerances: Tolerances | TolerancesInput,
   prefix = 'tolerances',
 ): SpreadParameter[] {
@@ -226,6 +236,10 @@ export function resolveTolerances(
     if (!spec) continue;
     const info = PATH_INFO[path];
     const field = `${prefix}.${path}`;
+    if (!pathAppliesTo(path, design)) {
+      issues.push({ path: field, message: notApplicableMessage(path, design) });
+      continue;
+    }
     const nominal = info.get(design);
     if (nominal === null) {
       issues.push({
@@ -284,6 +298,20 @@ export function resolveTolerances(
   return parameters;
 }
 
+/** Why a path does not apply to this kind of design, and what to use instead. */
+function notApplicableMessage(path: TolerancePath, design: SpreadDesign): string {
+  if (!isMainsSpreadDesign(design)) return `applies to mains designs only (a design with a mains section); this design has a DC source`;
+  const instead: Record<string, string> = {
+    'source.voltage': 'mains.voltage',
+    'source.resistance': 'mains.lineResistance',
+    'source.inductance': 'mains.lineInductance',
+    'precharge.resistance': 'mains.limiter.resistance (or mains.limiter.r25 for an NTC)',
+    'precharge.bypass.delay': 'mains.limiter.bypass.delay',
+  };
+  if (path === 'initial.inductorCurrent') return 'does not apply to a mains design: the line carries no current before the switch closes';
+  return `does not apply to a mains design (it has no DC ${path.split('.')[0]} section)${instead[path] ? `: use ${instead[path]}` : ''}`;
+}
+
 const SECTION_NAMES: Record<string, string> = {
   source: 'source',
   precharge: 'precharge resistor',
@@ -294,6 +322,10 @@ const SECTION_NAMES: Record<string, string> = {
   bleeder: 'bleeder resistor',
   load: 'load',
   initial: 'initial state',
+  mains: 'mains section',
+  'mains.limiter.resistor': 'resistor limiter (mains.limiter.kind "resistor")',
+  'mains.limiter.ntc': 'NTC limiter (mains.limiter.kind "ntc")',
+  'mains.limiter.bypass': 'bypass relay on the limiter',
 };
 
 function checkBound(bound: string, lo: number, hi: number, show: (v: number) => string): string | null {
@@ -304,6 +336,9 @@ function checkBound(bound: string, lo: number, hi: number, show: (v: number) => 
       return lo >= 0 ? null : `the band reaches ${show(lo)}; this value must not be negative`;
     case 'unitInterval':
       return lo > 0 && hi <= 1 ? null : `the band ${show(lo)} … ${show(hi)} must stay above 0 and at most 1`;
+    case 'temperature':
+      // The mains schema's own range for temperatures (150–700 K).
+      return lo >= 150 && hi <= 700 ? null : `the band ${show(lo)} … ${show(hi)} must stay within 150 K … 700 K`;
     default:
       return null;
   }

@@ -134,8 +134,19 @@ export const junk = fc.oneof(hostileScalar, pollution, deepJunk, fc.jsonValue({ 
 /** A legal design with one to three fields (at any depth) replaced by junk, or junk keys added. */
 export const mutatedDesign = fc
   .tuple(legalDesign, fc.array(fc.tuple(fc.nat(), fc.option(fc.string(), { nil: undefined }), junk), { minLength: 1, maxLength: 3 }))
-  .map(([design, edits]) => {
-    for (const [pick, extraKey, value] of edits) {
+  .map(([source, edits]) => {
+    // Work on copies: fast-check calls this again on the same values while it shrinks, and editing
+    // them in place would pile edits up (or put a junk object inside itself, a cycle).
+    const design = structuredClone(source);
+    const copy = (value: unknown) => {
+      try {
+        return structuredClone(value);
+      } catch {
+        return value;
+      }
+    };
+    for (const [pick, extraKey, original] of edits) {
+      const value = copy(original);
       // Collect every object in the design and every key path.
       const slots: [Record<string, unknown>, string][] = [];
       const walk = (o: Record<string, unknown>) => {

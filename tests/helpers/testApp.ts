@@ -10,6 +10,8 @@ import { createApp, type AppOptions } from '@/server/app';
 import { randomJwtSecret } from '@/server/auth/secret';
 import { startCaptureServer, type CaptureServer } from '@/server/mail/captureServer';
 import { createMailer, type Mailer } from '@/server/mail/mailer';
+import { stopJobWorkers } from '@/server/services/jobs';
+import { closeEnginePool } from '@/server/services/offload';
 import { openTestDatabase } from './testDatabase';
 
 export type Person = 'admin' | 'engineer' | 'reviewer' | 'viewer' | 'outsider';
@@ -54,6 +56,7 @@ const TABLES = [
   'designs',
   'revisions',
   'analysis_runs',
+  'analysis_jobs',
   'reviews',
   'review_comments',
   'component_parts',
@@ -134,6 +137,8 @@ export async function createTestWorld(options: Partial<AppOptions> = {}): Promis
     addUser,
     async close() {
       await mailer.flush();
+      await stopJobWorkers(database);
+      await closeEnginePool();
       mailer.close();
       await capture.close();
       await database.close();

@@ -145,3 +145,52 @@ describe('stateless mains endpoints', () => {
     expect(noNtc.body.error.fields[0].path).toBe('design.mains.limiter.kind');
   });
 });
+
+describe('a tolerance spread of a mains design (issue 9)', () => {
+  async function poll(agent: Awaited<ReturnType<TestWorld['as']>>, jobId: string) {
+    for (let k = 0; k < 2400; k++) {
+      const res = await agent.get(`/api/analysis-jobs/${jobId}`).expect(200);
+      if (res.body.state !== 'queued' && res.body.state !== 'running') return res.body;
+      await new Promise((r) => setTimeout(r, 50));
+    }
+    throw new Error('the spread job did not finish');
+  }
+
+  it('runs through the job route to completion with the mains engine, its metrics and checks', async () => {
+    const sam = await world.as('engineer');
+    const options = {
+      method: 'corners',
+      tolerances: { 'mains.voltage': { percent: 10 }, 'capacitor.capacitance': { percent: 20 } },
+    };
+    const start = await sam.post(`/api/revisions/${revision.id}/analyses`).send({ kind: 'spread', options }).expect(202);
+    expect(start.body.job).toEqual(expect.objectContaining({ kind: 'spread', total: 4 }));
+    const done = await poll(sam, start.body.job.id);
+    expect(done.state).toBe('done');
+    const result = done.result.result;
+    expect(result.status).toBe('complete');
+    expect(result.subject).toBe('mains');
+    expect(result.mains.angleMode).toBe('search');
+    const keys = result.metrics.map((m: { key: string }) => m.key);
+    expect(keys).toEqual(expect.arrayContaining(['peakCurrent', 'diodeI2t', 'surgeEquivalentCurrent', 'limiterEnergy', 'switchOnAngle']));
+    const peak = result.metrics.find((m: { key: string }) => m.key === 'peakCurrent');
+    expect(peak.max).toBeGreaterThan(peak.nominal);
+    expect(peak.atMax.values['mains.voltage']).toBeCloseTo(253, 6);
+    // The corner opens as a mains design (no DC source), at the angle it was judged at.
+    expect(peak.atMax.design.mains.voltage).toBeCloseTo(253, 6);
+    expect(peak.atMax.design.source).toBeUndefined();
+    const surge = result.checks.find((c: { id: string }) => c.id === 'diode-surge-current');
+    expect(surge.limit).toBe(200);
+    expect(surge.value.max).toBeCloseTo(result.metrics.find((m: { key: string }) => m.key === 'surgeEquivalentCurrent').max, 9);
+  });
+
+  it('names a DC path put on a mains design', async () => {
+    const sam = await world.as('engineer');
+    const res = await sam
+      .post(`/api/revisions/${revision.id}/analyses`)
+      .send({ kind: 'spread', options: { method: 'corners', tolerances: { 'source.voltage': { percent: 10 } } } })
+      .expect(422);
+    expect(res.body.error.fields).toEqual(
+      expect.arrayContaining([expect.objectContaining({ path: 'options.tolerances.source.voltage', message: expect.stringMatching(/mains\.voltage/) })]),
+    );
+  });
+});

@@ -99,6 +99,13 @@ describe('parts CSV: formula injection', () => {
     expect(row).toContain(`"'=cmd|""/c calc""!A1"`);
     expect(importPartsCsv(csv).parts[0].description).toBe('=cmd|"/c calc"!A1');
   });
+
+  it('quotes a cell with a semicolon, so a ";" spreadsheet cannot split a formula out of it', () => {
+    const part = parsePart({ kind: 'fuse', partNumber: 'NF-FUS-Y', meltingI2t: 10, description: 'Bus A;=cmd|"/c calc"!A1' });
+    const csv = exportPartsCsv([part]);
+    expect(csv.split('\r\n')[1]).toContain('"Bus A;=cmd|""/c calc""!A1"');
+    expect(importPartsCsv(csv).parts[0].description).toBe('Bus A;=cmd|"/c calc"!A1');
+  });
 });
 
 describe('parts CSV: per-row errors', () => {
