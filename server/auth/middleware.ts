@@ -2,12 +2,11 @@
 // then carries exactly one guard: requireSignedIn, or requireRole(...roles) for anything inside a
 // team. Refusals happen before a handler runs, so a refused request writes nothing.
 import type { Request, RequestHandler, Router } from 'express';
-import { asc, eq } from 'drizzle-orm';
+import { asc, eq, sql } from 'drizzle-orm';
 import { ACCESS_COOKIE, TEAM_HEADER } from '../../lib/contracts/common';
-import { designs, invitations, memberships, projects, reviews, revisions, teams, users, type Role } from '../../db/schema';
+import { designs, invitations, memberships, projects, reviews, revisions, sessions, teams, users, type Role } from '../../db/schema';
 import type { AppContext, AuthState } from '../context';
 import { forbidden, notFound, unauthorized } from '../errors';
-import { isFamilyActive } from './sessions';
 
 export const ALL_ROLES: Role[] = ['admin', 'engineer', 'reviewer', 'viewer'];
 
@@ -25,21 +24,35 @@ export function authenticate(ctx: AppContext): RequestHandler {
   };
 }
 
-/** The user (gone if the account was deleted), their live session family and their teams. */
+/**
+ * The user (gone if the account was deleted), whether their session family is live, and their
+ * teams: one query, since it runs before every signed-in request.
+ */
 export async function loadAuthState(ctx: AppContext, userId: string, familyId: string): Promise<AuthState | null> {
-  const [user] = await ctx.db
-    .select({ id: users.id, email: users.email, name: users.name })
-    .from(users)
-    .where(eq(users.id, userId));
-  if (!user) return null;
-  if (!(await isFamilyActive(ctx.db, familyId, userId))) return null;
+  const familyActive = sql<boolean>`exists (select 1 from ${sessions} where ${sessions.familyId} = ${familyId}
+    and ${sessions.userId} = ${userId} and ${sessions.revokedAt} is null and ${sessions.expiresAt} > now())`;
   const rows = await ctx.db
-    .select({ teamId: memberships.teamId, teamName: teams.name, role: memberships.role })
-    .from(memberships)
-    .innerJoin(teams, eq(teams.id, memberships.teamId))
-    .where(eq(memberships.userId, userId))
+    .select({
+      id: users.id,
+      email: users.email,
+      name: users.name,
+      familyActive,
+      teamId: memberships.teamId,
+      teamName: teams.name,
+      role: memberships.role,
+    })
+    .from(users)
+    .leftJoin(memberships, eq(memberships.userId, users.id))
+    .leftJoin(teams, eq(teams.id, memberships.teamId))
+    .where(eq(users.id, userId))
     .orderBy(asc(memberships.createdAt), asc(memberships.id));
-  return { user, familyId, memberships: rows };
+  const first = rows[0];
+  if (!first || !first.familyActive) return null;
+  return {
+    user: { id: first.id, email: first.email, name: first.name },
+    familyId,
+    memberships: rows.flatMap((r) => (r.teamId && r.teamName !== null && r.role ? [{ teamId: r.teamId, teamName: r.teamName, role: r.role }] : [])),
+  };
 }
 
 export const requireSignedIn: RequestHandler = (req, _res, next) => {

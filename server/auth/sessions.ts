@@ -3,7 +3,7 @@
 // rotated token again (after a short grace for two tabs refreshing at once) is taken as theft and
 // revokes the whole family.
 import { randomBytes, randomUUID } from 'node:crypto';
-import { and, eq, gt, isNull, ne } from 'drizzle-orm';
+import { and, eq, isNull, ne } from 'drizzle-orm';
 import type { Database } from '../../db/client';
 import { sessions } from '../../db/schema';
 import { sha256Hex } from '../services/canonical';
@@ -73,22 +73,6 @@ export async function rotateSession(
   if (revoked.length === 0) return { ok: false, reason: 'revoked' };
   const session = await createSession(db, row.userId, ttlSeconds, meta, row.familyId);
   return { ok: true, userId: row.userId, session };
-}
-
-export async function isFamilyActive(db: Database, familyId: string, userId: string): Promise<boolean> {
-  const rows = await db
-    .select({ id: sessions.id })
-    .from(sessions)
-    .where(
-      and(
-        eq(sessions.familyId, familyId),
-        eq(sessions.userId, userId),
-        isNull(sessions.revokedAt),
-        gt(sessions.expiresAt, new Date()),
-      ),
-    )
-    .limit(1);
-  return rows.length > 0;
 }
 
 export async function revokeFamily(db: Database, familyId: string, reason: string): Promise<void> {
