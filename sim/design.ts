@@ -281,9 +281,12 @@ function unknownFieldMessage(parent: string, key: string): string {
 function zodIssues(error: z.ZodError): DesignIssue[] {
   const issues: DesignIssue[] = [];
   for (const issue of error.issues) {
-    const path = issue.path.map(String).join('.');
+    // An empty key is written "" so that the path still names it (a bare "" would read as the root).
+    const segment = (key: unknown) => (key === '' ? '""' : String(key));
+    const path = issue.path.map(segment).join('.');
     if (issue.code === 'unrecognized_keys') {
-      for (const key of issue.keys) issues.push({ path: path ? `${path}.${key}` : key, message: unknownFieldMessage(path, key) });
+      for (const key of issue.keys)
+        issues.push({ path: path ? `${path}.${segment(key)}` : segment(key), message: unknownFieldMessage(path, key) });
     } else {
       issues.push({ path, message: issue.message });
     }

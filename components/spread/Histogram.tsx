@@ -23,6 +23,8 @@ export function Histogram({ histogram, testID }: { histogram: SpreadHistogram; t
   const span = hi - lo || Math.abs(hi) || 1;
   const x = scaleLinear().domain([lo - span * 0.02, hi + span * 0.02]).range([pad.l, Math.max(pad.l + 1, width - pad.r)]);
   const top = Math.max(1, ...bins.map((b) => b.count));
+  const dataLeft = x(bins[0]?.from ?? lo);
+  const dataRight = x(bins[bins.length - 1]?.to ?? hi);
   const y = scaleLinear().domain([0, top]).range([height - pad.b, pad.t]);
   const u = histogram.unit;
   const total = bins.reduce((s, b) => s + b.count, 0);
@@ -73,12 +75,27 @@ export function Histogram({ histogram, testID }: { histogram: SpreadHistogram; t
               </SvgText>
             </G>
           ))}
-          <SvgText x={pad.l} y={height - 10} fontSize={11} fill={c.mutedInk}>
-            {formatEng(bins[0]?.from, u)}
-          </SvgText>
-          <SvgText x={width - pad.r} y={height - 10} fontSize={11} fill={c.mutedInk} textAnchor="end">
-            {formatEng(bins[bins.length - 1]?.to, u)}
-          </SvgText>
+          {/* The samples' range, written under the bars themselves (the axis may run on to a rating). */}
+          {dataRight - dataLeft < 110 ? (
+            <SvgText
+              x={dataLeft > width / 2 ? dataRight : dataLeft}
+              y={height - 10}
+              fontSize={11}
+              fill={c.mutedInk}
+              textAnchor={dataLeft > width / 2 ? 'end' : 'start'}
+            >
+              {`${formatEng(bins[0]?.from, u)} … ${formatEng(bins[bins.length - 1]?.to, u)}`}
+            </SvgText>
+          ) : (
+            <>
+              <SvgText x={dataLeft} y={height - 10} fontSize={11} fill={c.mutedInk}>
+                {formatEng(bins[0]?.from, u)}
+              </SvgText>
+              <SvgText x={dataRight} y={height - 10} fontSize={11} fill={c.mutedInk} textAnchor="end">
+                {formatEng(bins[bins.length - 1]?.to, u)}
+              </SvgText>
+            </>
+          )}
         </Svg>
       ) : null}
       <Text variant="caption" muted>

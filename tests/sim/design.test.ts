@@ -67,6 +67,9 @@ describe('parseDesign', () => {
       /unknown field.*did you mean "capacitance"/,
     ],
     ['an unknown section', { ...minimal, tolerance: {} }, 'tolerance', /unknown field/],
+    // Found by the nightly fuzz: an empty key must still be named (a bare "" path reads as the root).
+    ['an empty key', { ...minimal, '': 1 }, '""', /unknown field ""/],
+    ['an empty key in a section', { ...minimal, capacitor: { capacitance: '1 mF', '': 1 } }, 'capacitor.""', /unknown field ""/],
     ['a missing section', { source: { voltage: 1 }, duration: 1 }, 'capacitor', /is required/],
     ['a missing source voltage', { ...minimal, source: {} }, 'source.voltage', /is required/],
     ['an unknown load kind', { ...minimal, load: { kind: 'motor', value: 1 } }, 'load.kind', /must be "none"/],
