@@ -5,6 +5,7 @@ import type { Request, RequestHandler, Router } from 'express';
 import { asc, eq, sql } from 'drizzle-orm';
 import { ACCESS_COOKIE, TEAM_HEADER } from '../../lib/contracts/common';
 import { designs, invitations, memberships, projects, reviews, revisions, sessions, teams, users, type Role } from '../../db/schema';
+import type { Database } from '../../db/client';
 import type { AppContext, AuthState } from '../context';
 import { forbidden, notFound, unauthorized } from '../errors';
 
@@ -24,14 +25,13 @@ export function authenticate(ctx: AppContext): RequestHandler {
   };
 }
 
-/**
- * The user (gone if the account was deleted), whether their session family is live, and their
- * teams: one query, since it runs before every signed-in request.
- */
-export async function loadAuthState(ctx: AppContext, userId: string, familyId: string): Promise<AuthState | null> {
+/** The signed-in state's query, prepared once per database: it runs before every signed-in request. */
+function authStateQuery(db: Database) {
+  const userId = sql.placeholder('userId');
+  const familyId = sql.placeholder('familyId');
   const familyActive = sql<boolean>`exists (select 1 from ${sessions} where ${sessions.familyId} = ${familyId}
     and ${sessions.userId} = ${userId} and ${sessions.revokedAt} is null and ${sessions.expiresAt} > now())`;
-  const rows = await ctx.db
+  return db
     .select({
       id: users.id,
       email: users.email,
@@ -45,7 +45,22 @@ export async function loadAuthState(ctx: AppContext, userId: string, familyId: s
     .leftJoin(memberships, eq(memberships.userId, users.id))
     .leftJoin(teams, eq(teams.id, memberships.teamId))
     .where(eq(users.id, userId))
-    .orderBy(asc(memberships.createdAt), asc(memberships.id));
+    .orderBy(asc(memberships.createdAt), asc(memberships.id))
+    .prepare('ringwell_auth_state');
+}
+const preparedAuthState = new WeakMap<Database, ReturnType<typeof authStateQuery>>();
+
+/**
+ * The user (gone if the account was deleted), whether their session family is live, and their
+ * teams, in one prepared query.
+ */
+export async function loadAuthState(ctx: AppContext, userId: string, familyId: string): Promise<AuthState | null> {
+  let query = preparedAuthState.get(ctx.db);
+  if (!query) {
+    query = authStateQuery(ctx.db);
+    preparedAuthState.set(ctx.db, query);
+  }
+  const rows = await query.execute({ userId, familyId });
   const first = rows[0];
   if (!first || !first.familyActive) return null;
   return {
