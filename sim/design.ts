@@ -271,14 +271,18 @@ function editDistance(a: string, b: string): number {
   return row[b.length];
 }
 
-function unknownFieldMessage(parent: string, key: string): string {
-  const known = KNOWN_FIELDS[parent] ?? [];
+/** "unknown field", with the nearest known name when one is close. */
+function unknownFieldMessage(key: string, known: string[]): string {
   const best = known.map((name) => ({ name, distance: editDistance(key, name) })).sort((x, y) => x.distance - y.distance)[0];
   const hint = best && best.distance <= Math.max(2, Math.floor(key.length / 3)) ? ` (did you mean "${best.name}"?)` : '';
   return `unknown field "${key}"${hint}`;
 }
 
-function zodIssues(error: z.ZodError): DesignIssue[] {
+/**
+ * A zod error as design issues, each naming its field by path. `knownFields(parent)` lists the
+ * fields a section has, for the "did you mean" hint on an unknown one (the mains schema has its own).
+ */
+export function zodDesignIssues(error: z.ZodError, knownFields: (parent: string) => string[]): DesignIssue[] {
   const issues: DesignIssue[] = [];
   for (const issue of error.issues) {
     // An empty key is written "" so that the path still names it (a bare "" would read as the root).
@@ -286,13 +290,15 @@ function zodIssues(error: z.ZodError): DesignIssue[] {
     const path = issue.path.map(segment).join('.');
     if (issue.code === 'unrecognized_keys') {
       for (const key of issue.keys)
-        issues.push({ path: path ? `${path}.${segment(key)}` : segment(key), message: unknownFieldMessage(path, key) });
+        issues.push({ path: path ? `${path}.${segment(key)}` : segment(key), message: unknownFieldMessage(key, knownFields(path)) });
     } else {
       issues.push({ path, message: issue.message });
     }
   }
   return issues;
 }
+
+const zodIssues = (error: z.ZodError) => zodDesignIssues(error, (parent) => KNOWN_FIELDS[parent] ?? []);
 
 type Parsed = z.output<typeof designSchema>;
 

@@ -15,7 +15,7 @@
  */
 import { z } from 'zod';
 
-import { designSchema, safeParseDesign, type Design, type DesignInput, type RatingKey } from '../design';
+import { designSchema, safeParseDesign, zodDesignIssues, type Design, type DesignInput, type RatingKey } from '../design';
 import { DesignError, type DesignIssue } from '../errors';
 import { formatEng, parseQuantity, type Dimension } from '../units';
 import { ntcResistance } from './ntc';
@@ -278,29 +278,6 @@ export interface MainsDesign {
   tolerances?: Design['tolerances'];
 }
 
-function editDistance(a: string, b: string): number {
-  const row = Array.from({ length: b.length + 1 }, (_, j) => j);
-  for (let i = 1; i <= a.length; i++) {
-    let previous = row[0];
-    row[0] = i;
-    for (let j = 1; j <= b.length; j++) {
-      const current = row[j];
-      row[j] = Math.min(row[j] + 1, row[j - 1] + 1, previous + (a[i - 1].toLowerCase() === b[j - 1].toLowerCase() ? 0 : 1));
-      previous = current;
-    }
-  }
-  return row[b.length];
-}
-
-function unknownFieldMessage(parent: string, key: string): string {
-  // Downstream sections are the engine's: their field lists come from its schema.
-  const downstream = (dc as Record<string, unknown>)[parent];
-  const known = KNOWN_FIELDS[parent] ?? fieldsOf(downstream);
-  const best = known.map((name) => ({ name, distance: editDistance(key, name) })).sort((x, y) => x.distance - y.distance)[0];
-  const hint = best && best.distance <= Math.max(2, Math.floor(key.length / 3)) ? ` (did you mean "${best.name}"?)` : '';
-  return `unknown field "${key}"${hint}`;
-}
-
 /** The field names of an (optional, nullable) zod object schema. */
 function fieldsOf(schema: unknown): string[] {
   let current = schema as { shape?: Record<string, unknown>; unwrap?: () => unknown } | undefined;
@@ -308,21 +285,9 @@ function fieldsOf(schema: unknown): string[] {
   return current?.shape ? Object.keys(current.shape) : [];
 }
 
-function zodIssues(error: z.ZodError): DesignIssue[] {
-  const issues: DesignIssue[] = [];
-  for (const issue of error.issues) {
-    // An empty key is written "" so that the path still names it (a bare "" would read as the root).
-    const segment = (key: unknown) => (key === '' ? '""' : String(key));
-    const path = issue.path.map(segment).join('.');
-    if (issue.code === 'unrecognized_keys') {
-      for (const key of issue.keys)
-        issues.push({ path: path ? `${path}.${segment(key)}` : segment(key), message: unknownFieldMessage(path, key) });
-    } else {
-      issues.push({ path, message: issue.message });
-    }
-  }
-  return issues;
-}
+// Downstream sections are the engine's: their field lists come from its schema.
+const zodIssues = (error: z.ZodError) =>
+  zodDesignIssues(error, (parent) => KNOWN_FIELDS[parent] ?? fieldsOf((dc as Record<string, unknown>)[parent]));
 
 type Parsed = z.output<typeof mainsDesignSchema>;
 type ParsedLimiter = NonNullable<Parsed['mains']['limiter']>;
