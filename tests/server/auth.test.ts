@@ -328,8 +328,10 @@ describe('rate limiting of sign-in', () => {
 describe('GET /api/me and the current team', () => {
   it('follows X-Team-Id when the user is in that team, and says null for a team they are not in', async () => {
     const kai = await world.addUser('Kai Sorensen', 'kai@northfold.example', 'viewer');
+    // Joined team B later. Said explicitly: the embedded database's clock can give two inserts in a
+    // row the same timestamp, and the order of a tie is the random ids' (the first CI run that hit it failed).
     await world.database.db.execute(
-      sql`insert into memberships (team_id, user_id, role) values (${world.teamB.id}, ${kai.id}, 'engineer')`,
+      sql`insert into memberships (team_id, user_id, role, created_at) values (${world.teamB.id}, ${kai.id}, 'engineer', now() + interval '1 second')`,
     );
     const agent = request.agent(world.app);
     await agent.post('/api/auth/sign-in').send({ email: kai.email, password: TEST_PASSWORD }).expect(200);
